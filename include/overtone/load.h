@@ -1,0 +1,21 @@
+// include/overtone/load.h — read a format-1 plant file into the typed model (public).
+#ifndef OVERTONE_PUBLIC_LOAD_H_
+#define OVERTONE_PUBLIC_LOAD_H_
+
+#include <string>
+
+#include "overtone/plant.h"
+
+namespace overtone {
+
+// Reads, merges (`extends`, `remove`), checks and converts a plant file. Every problem found is
+// collected and thrown together as one InputError (overtone/errors.h); nothing is returned half
+// checked. Paths in `extends` are relative to the file that names them.
+Plant LoadPlant(const std::string& path);
+
+// The same for text held in memory; `file_name` is used in messages and to resolve `extends`.
+Plant LoadPlantFromString(const std::string& text, const std::string& file_name);
+
+}  // namespace overtone
+
+#endif  // OVERTONE_PUBLIC_LOAD_H_

@@ -1,0 +1,102 @@
+// src/output_json.cc — the study's JSON document (PLANT-FORMAT.md "JSON written by the commands").
+#include <cmath>
+#include <numbers>
+
+#include "indices.h"
+#include "json_writer.h"
+#include "overtone/report.h"
+
+namespace overtone {
+namespace {
+
+using internal::JsonWriter;
+constexpr double kDegPerRad = 180.0 / std::numbers::pi;
+
+double AngleDeg(Phasor x) { return x == Phasor{} ? 0.0 : std::arg(x) * kDegPerRad; }
+double PercentOf(Phasor x, double fundamental) {
+  return fundamental > 0.0 ? 100.0 * std::abs(x) / fundamental : 0.0;
+}
+
+// Orders 2..max_order; `amps` adds the magnitude in amperes (currents).
+void WriteHarmonics(JsonWriter& j, const Spectrum& s, bool amps) {
+  const double fundamental = std::abs(s.at(1));
+  j.Key("harmonics").BeginArray();
+  for (std::size_t h = 2; h < s.by_order.size(); ++h) {
+    const Phasor x = s.by_order[h];
+    j.BeginObject().Field("order", static_cast<int>(h));
+    if (amps) j.Field("amps", std::abs(x));
+    j.Field("percent", PercentOf(x, fundamental)).Field("angle_deg", AngleDeg(x)).EndObject();
+  }
+  j.EndArray();
+}
+
+void WriteCurrentSummary(JsonWriter& j, const Spectrum& s, const WaveformIndices& ix) {
+  j.Field("i1_a", std::abs(s.at(1))).Field("i1_angle_deg", AngleDeg(s.at(1)));
+  j.Field("thd_i_percent", ix.thd_percent);
+}
+
+void WritePcc(JsonWriter& j, const PccResult& pcc) {
+  j.Key("pcc").BeginObject().Field("bus", pcc.bus);
+  if (pcc.demand_current_a) {
+    j.Field("demand_current_a", *pcc.demand_current_a);
+    j.Field("demand_current_is_default", pcc.demand_current_is_default);
+  }
+  j.Field("isc_a", pcc.isc_a);
+  if (pcc.demand_current_a) j.Field("isc_over_il", pcc.isc_a / *pcc.demand_current_a);
+  if (pcc.tdd_percent) j.Field("tdd_percent", *pcc.tdd_percent);
+  j.Key("harmonics").BeginArray();
+  for (const PccHarmonic& h : pcc.harmonics) {
+    j.BeginObject().Field("order", h.order).Field("amps", h.amps);
+    j.Field("percent_of_il", h.percent_of_il).EndObject();
+  }
+  j.EndArray().EndObject();
+}
+
+}  // namespace
+
+void WriteStudyJson(const StudyResult& r, std::ostream& out) {
+  JsonWriter j(out);
+  j.BeginObject().Field("overtone", 1);
+  j.Key("study").BeginObject().Field("name", r.study.name).Field("frequency_hz", r.study.frequency_hz);
+  j.Field("max_order", r.study.max_order).Field("summation", ToString(r.study.summation)).EndObject();
+
+  j.Key("buses").BeginArray();
+  for (const BusResult& b : r.buses) {
+    j.BeginObject().Field("name", b.name).Field("kv", b.nominal_v / 1e3);
+    j.Field("v1_pu", b.indices.fundamental).Field("v1_angle_deg", AngleDeg(b.voltage_pu.at(1)));
+    j.Field("thd_v_percent", b.indices.thd_percent).Field("vrms_pu", b.indices.rms);
+    j.Field("vpeak_pu", b.indices.peak);
+    WriteHarmonics(j, b.voltage_pu, false);
+    j.EndObject();
+  }
+  j.EndArray();
+
+  j.Key("branches").BeginArray();
+  for (const BranchResult& b : r.branches) {
+    j.BeginObject().Field("name", b.name).Field("kind", b.kind).Field("from", b.from).Field("to", b.to);
+    WriteCurrentSummary(j, b.current_a, b.indices);
+    j.Field("irms_a", b.indices.rms);
+    WriteHarmonics(j, b.current_a, true);
+    j.EndObject();
+  }
+  j.EndArray();
+
+  j.Key("drives").BeginArray();
+  for (const DriveResult& d : r.drives) {
+    j.BeginObject().Field("name", d.name).Field("bus", d.bus).Field("count", d.count);
+    j.Field("front_end", ToString(d.front_end));
+    WriteCurrentSummary(j, d.current_a, d.indices);
+    j.Field("ipeak_a", std::sqrt(2.0) * d.indices.peak);
+    WriteHarmonics(j, d.current_a, true);
+    j.EndObject();
+  }
+  j.EndArray();
+
+  WritePcc(j, r.pcc);
+  j.StringArray("warnings", r.warnings);
+  j.StringArray("cautions", r.cautions);
+  j.EndObject();
+  out << '\n';
+}
+
+}  // namespace overtone

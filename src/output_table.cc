@@ -1,0 +1,113 @@
+// src/output_table.cc — terminal tables of a study: buses, drive groups, pcc, notes.
+#include <algorithm>
+#include <cmath>
+
+#include <fmt/format.h>
+#include <fmt/ostream.h>
+
+#include "overtone/report.h"
+
+namespace overtone {
+namespace {
+
+// "5: 3.2  7: 2.1  11: 0.9" — the three largest harmonic orders in percent of the fundamental.
+std::string LargestOrders(const Spectrum& s, double fundamental) {
+  if (fundamental <= 0.0) return "";
+  std::vector<int> orders;
+  for (std::size_t h = 2; h < s.by_order.size(); ++h) {
+    if (std::abs(s.by_order[h]) > 0.0) orders.push_back(static_cast<int>(h));
+  }
+  const auto larger = [&](int a, int b) {
+    const double ma = std::abs(s.at(a)), mb = std::abs(s.at(b));
+    return ma != mb ? ma > mb : a < b;
+  };
+  const std::size_t shown = std::min<std::size_t>(3, orders.size());
+  std::partial_sort(orders.begin(), orders.begin() + static_cast<std::ptrdiff_t>(shown), orders.end(), larger);
+  std::string text;
+  for (std::size_t k = 0; k < shown; ++k) {
+    text += fmt::format("{}{:>2}: {:.2f}", k ? "  " : "", orders[k], 100.0 * std::abs(s.at(orders[k])) / fundamental);
+  }
+  return text;
+}
+
+std::size_t Widest(std::size_t minimum, const auto& rows, const auto& name) {
+  std::size_t w = minimum;
+  for (const auto& r : rows) w = std::max(w, name(r).size());
+  return w;
+}
+
+}  // namespace
+
+void PrintStudyTables(const StudyResult& r, std::ostream& out) {
+  fmt::print(out, "Study: {}  ({} Hz, orders 2..{}, {} summation)\n\n", r.study.name,
+             r.study.frequency_hz, r.study.max_order, ToString(r.study.summation));
+
+  const std::size_t bw = Widest(3, r.buses, [](const BusResult& b) -> const std::string& { return b.name; });
+  fmt::print(out, "Buses\n{:<{}}  {:>7}  {:>7}  {:>7}  {}\n", "bus", bw, "kV", "V1 pu", "THDv %",
+             "largest orders (% of V1)");
+  for (const BusResult& b : r.buses) {
+    fmt::print(out, "{:<{}}  {:>7.3f}  {:>7.4f}  {:>7.2f}  {}\n", b.name, bw, b.nominal_v / 1e3,
+               b.indices.fundamental, b.indices.thd_percent,
+               LargestOrders(b.voltage_pu, b.indices.fundamental));
+  }
+
+  if (!r.drives.empty()) {
+    const std::size_t dw = Widest(5, r.drives, [](const DriveResult& d) -> const std::string& { return d.name; });
+    const std::size_t dbw = Widest(3, r.drives, [](const DriveResult& d) -> const std::string& { return d.bus; });
+    fmt::print(out, "\nDrive groups\n{:<{}}  {:<{}}  {:>5}  {:<15}  {:>9}  {:>7}\n", "group", dw, "bus",
+               dbw, "count", "front end", "I1 A", "THDi %");
+    for (const DriveResult& d : r.drives) {
+      fmt::print(out, "{:<{}}  {:<{}}  {:>5}  {:<15}  {:>9.1f}  {:>7.2f}\n", d.name, dw, d.bus, dbw,
+                 d.count, ToString(d.front_end), d.indices.fundamental, d.indices.thd_percent);
+    }
+  }
+
+  const PccResult& p = r.pcc;
+  fmt::print(out, "\nPoint of common coupling: {}  I_sc = {:.0f} A", p.bus, p.isc_a);
+  if (p.demand_current_a) {
+    fmt::print(out, "  I_L = {:.1f} A{}  I_sc/I_L = {:.1f}  TDD = {:.2f} %", *p.demand_current_a,
+               p.demand_current_is_default ? " (default)" : "", p.isc_a / *p.demand_current_a,
+               p.tdd_percent.value_or(0.0));
+  }
+  fmt::print(out, "\n");
+
+  if (!r.warnings.empty()) {
+    fmt::print(out, "\nWarnings\n");
+    for (const std::string& w : r.warnings) fmt::print(out, "- {}\n", w);
+  }
+  fmt::print(out, "\nCautions\n");
+  for (const std::string& c : r.cautions) fmt::print(out, "- {}\n", c);
+}
+
+}  // namespace overtone
+
+namespace overtone {
+
+void PrintPlantSummary(const Plant& p, std::ostream& out) {
+  fmt::print(out, "Plant: {}  ({})\n", p.study.name, p.source_file);
+  fmt::print(out, "  {} buses, {} supplies, {} generators, {} transformers, {} cables\n",
+             p.buses.size(), p.supplies.size(), p.generators.size(), p.transformers.size(),
+             p.cables.size());
+  fmt::print(out, "  {} capacitor banks, {} filters, {} motor groups, {} load groups\n",
+             p.capacitors.size(), p.filters.size(), p.motors.size(), p.loads.size());
+  std::vector<std::pair<FrontEnd, std::pair<int, double>>> by_front_end;  // units, kW at loading
+  int units = 0;
+  double kw = 0.0;
+  for (const Drive& d : p.drives) {
+    auto it = std::find_if(by_front_end.begin(), by_front_end.end(),
+                           [&](const auto& e) { return e.first == d.front_end; });
+    if (it == by_front_end.end()) it = by_front_end.insert(by_front_end.end(), {d.front_end, {0, 0.0}});
+    it->second.first += d.count;
+    it->second.second += d.count * d.power_w * d.loading / 1e3;
+    units += d.count;
+    kw += d.count * d.power_w * d.loading / 1e3;
+  }
+  fmt::print(out, "  {} drive groups, {} units, {:.0f} kW at their loading\n", p.drives.size(), units, kw);
+  for (const auto& [front_end, totals] : by_front_end) {
+    fmt::print(out, "    {:<16} {:>6} units  {:>10.0f} kW\n", ToString(front_end), totals.first, totals.second);
+  }
+  fmt::print(out, "  study: {} Hz, orders up to {}, limits {}, {} summation\n", p.study.frequency_hz,
+             p.study.max_order, p.study.limits, ToString(p.study.summation));
+}
+
+}  // namespace overtone

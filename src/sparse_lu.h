@@ -1,0 +1,73 @@
+// src/sparse_lu.h — sparse LU behind Analyze / Factor / Refactor / Solve (internal).
+//
+// Wraps SuiteSparse KLU. The matrix is CSC with 0-based int indices:
+//   col_ptr  size n+1, column pointers;  row_idx  size nnz, row indices (sorted per column);
+//   values   size nnz, Scalar = double or std::complex<double> (KLU reads these as interleaved
+//            re/im pairs, which is the layout of std::complex<double>).
+// The symbolic analysis (ordering) depends on the pattern only and is shared read-only by every
+// numeric factorization made from it, so workers on different orders can share one Analysis.
+#ifndef OVERTONE_INTERNAL_SPARSE_LU_H_
+#define OVERTONE_INTERNAL_SPARSE_LU_H_
+
+#include <complex>
+#include <memory>
+#include <vector>
+
+namespace overtone::internal {
+
+struct CscPattern {
+  int n = 0;
+  std::vector<int> col_ptr;  // size n+1
+  std::vector<int> row_idx;  // size nnz
+  int nnz() const { return static_cast<int>(row_idx.size()); }
+  // Position of (row, col) in the values array; -1 when not in the pattern.
+  int Slot(int row, int col) const;
+};
+
+// Symbolic analysis of a pattern (AMD ordering, block triangular form).
+class SparseAnalysis {
+ public:
+  explicit SparseAnalysis(const CscPattern& pattern);
+  ~SparseAnalysis();
+  SparseAnalysis(const SparseAnalysis&) = delete;
+  SparseAnalysis& operator=(const SparseAnalysis&) = delete;
+  const CscPattern& pattern() const { return pattern_; }
+  void* symbolic() const { return symbolic_; }
+
+ private:
+  const CscPattern& pattern_;
+  void* symbolic_ = nullptr;
+};
+
+// Numeric LU of one matrix with the analysed pattern. Not thread safe: one per worker.
+template <typename Scalar>
+class SparseLu {
+ public:
+  explicit SparseLu(const SparseAnalysis& analysis);
+  ~SparseLu();
+  SparseLu(const SparseLu&) = delete;
+  SparseLu& operator=(const SparseLu&) = delete;
+
+  // Full factorization with partial pivoting; false when the matrix is singular.
+  bool Factor(const std::vector<Scalar>& values);
+  // Reuses the pivot sequence of the last Factor; false on a zero pivot.
+  bool Refactor(const std::vector<Scalar>& values);
+  // Cheap reciprocal pivot growth estimate, min|U_ii| / max|U_ii| (KLU rcond).
+  double Rcond();
+  // Solves in place; rhs has size n.
+  bool Solve(std::vector<Scalar>& rhs);
+  bool factored() const { return numeric_ != nullptr; }
+
+ private:
+  void FreeNumeric();
+  const SparseAnalysis& analysis_;
+  void* numeric_ = nullptr;
+  void* common_ = nullptr;
+};
+
+extern template class SparseLu<double>;
+extern template class SparseLu<std::complex<double>>;
+
+}  // namespace overtone::internal
+
+#endif  // OVERTONE_INTERNAL_SPARSE_LU_H_

@@ -1,0 +1,258 @@
+// src/study.cc — the study pipeline: network, load flow, spectra, per-order solves, indices.
+#include "overtone/study.h"
+
+#include <cmath>
+#include <numbers>
+#include <queue>
+
+#include <fmt/format.h>
+
+#include "harmonic_solve.h"
+#include "indices.h"
+#include "load_flow.h"
+#include "network.h"
+#include "overtone/errors.h"
+#include "spectra.h"
+
+namespace overtone {
+namespace {
+
+using internal::Complex;
+using internal::Injection;
+using internal::Network;
+
+constexpr double kDegPerRad = 180.0 / std::numbers::pi;
+
+// Refuses front ends whose spectrum needs the built-in bridge model (not in this version).
+void RequireTableSpectra(const Plant& plant) {
+  std::vector<Diagnostic> problems;
+  for (const Drive& d : plant.drives) {
+    if (!internal::NeedsBridgeModel(d.front_end)) continue;
+    problems.push_back({d.where, fmt::format(
+        "drive '{}': front end '{}' needs the built-in bridge model, which this version does not "
+        "have yet; give the group's spectrum as a table (front_end: measured, harmonics: [...])",
+        d.name, ToString(d.front_end))});
+  }
+  if (!problems.empty()) throw InputError(std::move(problems));
+}
+
+std::vector<Complex> PowerDrawn(const Plant& plant, const Network& net) {
+  std::vector<Complex> s(static_cast<std::size_t>(net.bus_count()));
+  for (const Load& l : plant.loads) s[net.BusIndex(l.bus)] += internal::LoadPower(l);
+  for (const Motor& m : plant.motors) s[net.BusIndex(m.bus)] += internal::MotorPower(m);
+  for (const Drive& d : plant.drives) s[net.BusIndex(d.bus)] += internal::TableDrivePower(d);
+  return s;
+}
+
+Spectrum Scaled(const std::vector<Complex>& pu, double scale) {
+  Spectrum s;
+  s.by_order.resize(pu.size());
+  for (std::size_t h = 0; h < pu.size(); ++h) s.by_order[h] = pu[h] * scale;
+  return s;
+}
+
+// Background EMF of a supply at order h (pu), PLANT-FORMAT.md "Conventions".
+Complex BackgroundEmf(const Supply& s, int h) {
+  for (const HarmonicEntry& e : s.background) {
+    if (e.order != h) continue;
+    return std::polar(s.voltage_pu * e.percent / 100.0,
+                      (e.angle_deg + h * s.angle_deg) / kDegPerRad);
+  }
+  return {};
+}
+
+Complex SourceEmfAt(const Network& net, const internal::SourceRef& src, int h) {
+  if (h == 1) return net.SourceEmf(src);
+  return src.supply ? BackgroundEmf(*src.supply, h) : Complex{};
+}
+
+// Buses reachable from `start` over branches without passing `blocked`.
+bool ReachesSource(const Network& net, int start, int blocked) {
+  std::vector<char> seen(static_cast<std::size_t>(net.bus_count()), 0);
+  std::vector<char> has_source(seen.size(), 0);
+  for (const auto& s : net.sources()) has_source[s.bus] = 1;
+  std::queue<int> todo;
+  todo.push(start);
+  seen[start] = 1;
+  seen[blocked] = 1;
+  while (!todo.empty()) {
+    const int bus = todo.front();
+    todo.pop();
+    if (has_source[bus]) return true;
+    for (const auto& b : net.branches()) {
+      for (auto [here, there] : {std::pair{b.from, b.to}, std::pair{b.to, b.from}}) {
+        if (here == bus && !seen[there]) {
+          seen[there] = 1;
+          todo.push(there);
+        }
+      }
+    }
+  }
+  return false;
+}
+
+// Thevenin impedance at a bus with sources and series branches only (pu).
+Complex ShortCircuitImpedance(const Network& net, int bus) {
+  std::vector<Complex> values(static_cast<std::size_t>(net.pattern().nnz()));
+  net.Fill(1.0, internal::Sequence::kPositive, internal::Shunts::kShortCircuit, values);
+  internal::SparseAnalysis analysis(net.pattern());
+  internal::SparseLu<Complex> lu(analysis);
+  std::vector<Complex> e(static_cast<std::size_t>(net.bus_count()));
+  e[bus] = 1.0;
+  if (!lu.Factor(values) || !lu.Solve(e)) throw SolveError("the short-circuit network is singular");
+  return e[bus];
+}
+
+PccResult AssessPcc(const Plant& plant, const Network& net, const internal::HarmonicSolution& sol,
+                    std::vector<std::string>& warnings) {
+  PccResult pcc;
+  pcc.bus = plant.study.pcc;
+  if (pcc.bus.empty()) {
+    pcc.bus = !plant.supplies.empty() ? plant.supplies.front().bus : plant.generators.front().bus;
+  }
+  const int p = net.BusIndex(pcc.bus);
+  const int max_order = sol.max_order;
+  const double base_a = net.BaseAmps(p);
+  std::vector<Complex> current(static_cast<std::size_t>(max_order) + 1);
+  for (int h = 1; h <= max_order; ++h) {
+    const internal::Sequence seq = internal::SequenceOf(h);
+    for (const auto& s : net.sources()) {
+      if (s.bus == p) current[h] += (SourceEmfAt(net, s, h) - sol.at(h, p)) / net.SourceImpedance(s, h);
+    }
+    for (const auto& b : net.branches()) {
+      if (b.from != p && b.to != p) continue;
+      const int other = b.from == p ? b.to : b.from;
+      if (!ReachesSource(net, other, p)) continue;
+      const internal::BranchStamp st = net.Stamp(b, h, seq);
+      const Complex vf = sol.at(h, b.from), vt = sol.at(h, b.to);
+      current[h] -= b.from == p ? st.yff * vf + st.yft * vt : st.ytf * vf + st.ytt * vt;
+    }
+  }
+  pcc.current_a = Scaled(current, base_a);
+  pcc.isc_a = base_a / std::abs(ShortCircuitImpedance(net, p));
+
+  if (plant.study.demand_current_a) {
+    pcc.demand_current_a = plant.study.demand_current_a;
+  } else {
+    double rated = 0.0;
+    for (const Transformer& t : plant.transformers) {
+      if (t.from == pcc.bus) rated += t.rating_va / (std::sqrt(3.0) * net.nominal_v(p));
+    }
+    if (rated > 0.0) {
+      pcc.demand_current_a = rated;
+      pcc.demand_current_is_default = true;
+      warnings.push_back(fmt::format(
+          "pcc '{}': demand_current not given; I_L = {:.1f} A is the sum of the rated currents of "
+          "the transformers fed from the pcc. IEEE 519's I_L is the average maximum demand: this "
+          "default overstates it and so understates TDD", pcc.bus, rated));
+    } else {
+      warnings.push_back(fmt::format("pcc '{}': no demand_current and no transformer fed from the "
+                                     "pcc; current distortion (TDD) is left out", pcc.bus));
+    }
+  }
+  if (pcc.demand_current_a) {
+    const double il = *pcc.demand_current_a;
+    double sum_sq = 0.0;
+    for (int h = 2; h <= max_order; ++h) {
+      const double amps = std::abs(pcc.current_a.at(h));
+      sum_sq += amps * amps;
+      pcc.harmonics.push_back({h, amps, 100.0 * amps / il});
+    }
+    pcc.tdd_percent = 100.0 * std::sqrt(sum_sq) / il;
+  }
+  return pcc;
+}
+
+}  // namespace
+
+const std::vector<std::string>& StandardCautions() {
+  static const std::vector<std::string> cautions = {
+      "This is a screening study, not a design certification.",
+      "Results are only as good as the input data: supply fault level, transformer and cable "
+      "data, capacitor steps in service and drive spectra.",
+      "Verify the results by measurement at the plant before and after changes.",
+      "Follow the local electrical code, the utility's requirements and the judgment of a "
+      "licensed professional engineer.",
+  };
+  return cautions;
+}
+
+StudyResult RunStudy(const Plant& plant, const StudyOptions& options) {
+  RequireTableSpectra(plant);
+  const Network net(plant);
+  const int max_order = plant.study.max_order;
+  StudyResult result;
+  result.study = plant.study;
+  result.cautions = StandardCautions();
+
+  // Fundamental.
+  const internal::LoadFlowResult flow = internal::SolveLoadFlow(net, PowerDrawn(plant, net));
+  result.load_flow_iterations = flow.iterations;
+
+  // Injections: drive groups (drawn current, so injected with a minus sign) and supply backgrounds.
+  std::vector<std::vector<Injection>> injections(static_cast<std::size_t>(max_order) + 1);
+  std::vector<std::vector<Complex>> drive_currents;
+  for (const Drive& d : plant.drives) {
+    const int bus = net.BusIndex(d.bus);
+    const Complex v1 = flow.voltage[bus];
+    const Complex i1 = std::conj(internal::TableDrivePower(d) / v1);
+    drive_currents.push_back(internal::TableSpectrum(d, i1, max_order, result.warnings));
+    for (int h = 2; h <= max_order; ++h) injections[h].push_back({bus, -drive_currents.back()[h]});
+  }
+  for (const auto& s : net.sources()) {
+    if (!s.supply) continue;
+    for (const HarmonicEntry& e : s.supply->background) {
+      if (e.order > max_order) continue;
+      if (e.order % 3 == 0) {
+        result.warnings.push_back(fmt::format("supply '{}': triplen background order {} ignored "
+                                              "(zero sequence, format 1)", s.name(), e.order));
+        continue;
+      }
+      injections[e.order].push_back(
+          {s.bus, BackgroundEmf(*s.supply, e.order) / net.SourceImpedance(s, e.order)});
+    }
+  }
+
+  internal::HarmonicSolution sol = internal::SolveHarmonics(net, injections, max_order, options.threads);
+  for (int i = 0; i < net.bus_count(); ++i) sol.voltage[static_cast<std::size_t>(sol.bus_count) + i] = flow.voltage[i];
+
+  for (int i = 0; i < net.bus_count(); ++i) {
+    BusResult b;
+    b.name = net.bus(i).name;
+    b.nominal_v = net.nominal_v(i);
+    b.voltage_pu.by_order.resize(static_cast<std::size_t>(max_order) + 1);
+    for (int h = 1; h <= max_order; ++h) b.voltage_pu.by_order[h] = sol.at(h, i);
+    b.indices = internal::ComputeIndices(b.voltage_pu.by_order);
+    result.buses.push_back(std::move(b));
+  }
+  for (const auto& br : net.branches()) {
+    BranchResult r;
+    r.name = br.name();
+    r.kind = br.transformer ? "transformer" : "cable";
+    r.from = net.bus(br.from).name;
+    r.to = net.bus(br.to).name;
+    std::vector<Complex> current(static_cast<std::size_t>(max_order) + 1);
+    for (int h = 1; h <= max_order; ++h) {
+      const internal::BranchStamp st = net.Stamp(br, h, internal::SequenceOf(h));
+      current[h] = st.yff * sol.at(h, br.from) + st.yft * sol.at(h, br.to);
+    }
+    r.current_a = Scaled(current, net.BaseAmps(br.from));
+    r.indices = internal::ComputeIndices(r.current_a.by_order);
+    result.branches.push_back(std::move(r));
+  }
+  for (std::size_t k = 0; k < plant.drives.size(); ++k) {
+    const Drive& d = plant.drives[k];
+    DriveResult r;
+    r.name = d.name;
+    r.bus = d.bus;
+    r.count = d.count;
+    r.front_end = d.front_end;
+    r.current_a = Scaled(drive_currents[k], net.BaseAmps(net.BusIndex(d.bus)));
+    r.indices = internal::ComputeIndices(r.current_a.by_order);
+    result.drives.push_back(std::move(r));
+  }
+  result.pcc = AssessPcc(plant, net, sol, result.warnings);
+  return result;
+}
+
+}  // namespace overtone
