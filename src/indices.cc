@@ -16,13 +16,13 @@ double Sample(const std::vector<Phasor>& x, double wt) {
 
 }  // namespace
 
-WaveformIndices ComputeIndices(const std::vector<Phasor>& x) {
+WaveformIndices ComputeIndices(const std::vector<Phasor>& x, double negligible) {
   WaveformIndices r;
   double harmonic_sq = 0.0;
   for (std::size_t h = 2; h < x.size(); ++h) harmonic_sq += std::norm(x[h]);
   r.fundamental = x.size() > 1 ? std::abs(x[1]) : 0.0;
   r.rms = std::sqrt(r.fundamental * r.fundamental + harmonic_sq);
-  r.thd_percent = r.fundamental > 0.0 ? 100.0 * std::sqrt(harmonic_sq) / r.fundamental : 0.0;
+  r.thd_percent = r.fundamental > negligible ? 100.0 * std::sqrt(harmonic_sq) / r.fundamental : 0.0;
   r.peak = WaveformPeak(x);
   return r;
 }

@@ -104,7 +104,11 @@ LoadFlowResult SolveLoadFlow(const Network& net, const std::vector<Complex>& pow
   };
 
   auto [worst, worst_bus] = residual();
-  for (int it = 0; it < options.max_iterations && worst > options.tolerance_pu; ++it) {
+  // Newton converges quadratically: one more step after the tolerance is met costs little and
+  // takes the mismatch to round-off, so harmonic angles (h x the fundamental's) stay exact.
+  bool polished = false;
+  for (int it = 0; it < options.max_iterations && (worst > options.tolerance_pu || !polished); ++it) {
+    polished = worst <= options.tolerance_pu;
     for (int c = 0; c < n; ++c) {
       for (int k = yp.col_ptr[c]; k < yp.col_ptr[c + 1]; ++k) WriteBlock(yp, c, k, y1[k], jac);
     }

@@ -8,6 +8,7 @@
 #include <fmt/format.h>
 
 #include "overtone/errors.h"
+#include "sparse_lu.h"
 
 namespace overtone::internal {
 namespace {
@@ -122,6 +123,31 @@ void Network::Fill(double h, Sequence seq, Shunts shunts, std::vector<Complex>& 
     if (shunts == Shunts::kFundamental && constant_power_at_fundamental) continue;
     values[s.slot] += ShuntAdmittance(s, h);
   }
+}
+
+std::vector<Complex> ShortCircuitImpedances(const Network& net, const std::vector<int>& buses,
+                                            SourceSet sources) {
+  if (buses.empty()) return {};
+  std::vector<Complex> values(static_cast<std::size_t>(net.pattern().nnz()));
+  net.Fill(1.0, Sequence::kPositive, Shunts::kShortCircuit, values);
+  const bool any_supply = std::any_of(net.sources().begin(), net.sources().end(),
+                                      [](const SourceRef& s) { return s.supply != nullptr; });
+  if (sources == SourceSet::kSuppliesOnly && any_supply) {
+    for (const SourceRef& s : net.sources()) {
+      if (s.generator) values[s.slot] -= 1.0 / net.SourceImpedance(s, 1.0);
+    }
+  }
+  const SparseAnalysis analysis(net.pattern());
+  SparseLu<Complex> lu(analysis);
+  if (!lu.Factor(values)) throw SolveError("the short-circuit network is singular");
+  std::vector<Complex> out, unit(static_cast<std::size_t>(net.bus_count()));
+  for (int bus : buses) {
+    std::fill(unit.begin(), unit.end(), Complex{});
+    unit[bus] = 1.0;
+    lu.Solve(unit);
+    out.push_back(unit[bus]);
+  }
+  return out;
 }
 
 }  // namespace overtone::internal

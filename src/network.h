@@ -84,6 +84,17 @@ class Network {
   CscPattern pattern_;
 };
 
+enum class SourceSet {
+  kAll,           // supplies and generators
+  kSuppliesOnly,  // utility supplies (falls back to all sources when the plant has none)
+};
+
+// Thevenin impedance at each of `buses` (pu, fundamental, positive sequence) with the sources
+// and the series part of the branches only: the short-circuit impedance. One factorization
+// serves every bus. Throws SolveError when that network is singular.
+std::vector<Complex> ShortCircuitImpedances(const Network& network, const std::vector<int>& buses,
+                                            SourceSet sources);
+
 }  // namespace overtone::internal
 
 #endif  // OVERTONE_INTERNAL_NETWORK_H_

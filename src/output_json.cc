@@ -4,6 +4,7 @@
 
 #include "indices.h"
 #include "json_writer.h"
+#include "output_common.h"
 #include "overtone/report.h"
 
 namespace overtone {
@@ -13,19 +14,20 @@ using internal::JsonWriter;
 constexpr double kDegPerRad = 180.0 / std::numbers::pi;
 
 double AngleDeg(Phasor x) { return x == Phasor{} ? 0.0 : std::arg(x) * kDegPerRad; }
-double PercentOf(Phasor x, double fundamental) {
-  return fundamental > 0.0 ? 100.0 * std::abs(x) / fundamental : 0.0;
+double PercentOf(Phasor x, double fundamental, double negligible) {
+  return fundamental > negligible ? 100.0 * std::abs(x) / fundamental : 0.0;
 }
 
 // Orders 2..max_order; `amps` adds the magnitude in amperes (currents).
 void WriteHarmonics(JsonWriter& j, const Spectrum& s, bool amps) {
   const double fundamental = std::abs(s.at(1));
+  const double negligible = amps ? internal::kNegligibleCurrentA : internal::kNegligibleVoltagePu;
   j.Key("harmonics").BeginArray();
   for (std::size_t h = 2; h < s.by_order.size(); ++h) {
     const Phasor x = s.by_order[h];
     j.BeginObject().Field("order", static_cast<int>(h));
     if (amps) j.Field("amps", std::abs(x));
-    j.Field("percent", PercentOf(x, fundamental)).Field("angle_deg", AngleDeg(x)).EndObject();
+    j.Field("percent", PercentOf(x, fundamental, negligible)).Field("angle_deg", AngleDeg(x)).EndObject();
   }
   j.EndArray();
 }
@@ -50,6 +52,35 @@ void WritePcc(JsonWriter& j, const PccResult& pcc) {
     j.Field("percent_of_il", h.percent_of_il).EndObject();
   }
   j.EndArray().EndObject();
+}
+
+// IEEE 18 duty, C57.110 derating and the present state's resonance peaks.
+void WriteDutyAndResonances(JsonWriter& j, const StudyResult& r) {
+  j.Key("capacitors").BeginArray();
+  for (const CapacitorDuty& c : r.capacitors) {
+    j.BeginObject().Field("name", c.name).Field("bus", c.bus).Field("kind", c.kind);
+    j.Field("steps_on", c.steps_on).Field("steps", c.steps);
+    j.Field("vrms_percent", c.vrms_percent).Field("vpeak_percent", c.vpeak_percent);
+    j.Field("vpeak_arith_percent", c.vpeak_arith_percent).Field("irms_percent", c.irms_percent);
+    j.Field("kvar_percent", c.kvar_percent).Field("fundamental_rise", c.fundamental_rise);
+    if (c.reactor_irms_a) j.Field("reactor_irms_a", *c.reactor_irms_a);
+    j.Field("pass", c.pass).EndObject();
+  }
+  j.EndArray();
+  j.Key("transformers").BeginArray();
+  for (const TransformerDerating& t : r.transformers) {
+    j.BeginObject().Field("name", t.name).Field("harmonic_loss_factor", t.harmonic_loss_factor);
+    j.Field("k_factor", t.k_factor).Field("derated_percent", t.derated_percent);
+    j.Field("load_percent", t.load_percent).EndObject();
+  }
+  j.EndArray();
+  j.Key("resonances").BeginArray();
+  for (const Resonance& res : r.resonances) {
+    j.BeginObject().Field("bus", res.bus).Field("configuration", res.configuration);
+    internal::WritePeakFields(j, res.peak);
+    j.EndObject();
+  }
+  j.EndArray();
 }
 
 }  // namespace
@@ -93,6 +124,7 @@ void WriteStudyJson(const StudyResult& r, std::ostream& out) {
   j.EndArray();
 
   WritePcc(j, r.pcc);
+  WriteDutyAndResonances(j, r);
   j.StringArray("warnings", r.warnings);
   j.StringArray("cautions", r.cautions);
   j.EndObject();

@@ -5,6 +5,7 @@
 #include <fmt/format.h>
 #include <fmt/ostream.h>
 
+#include "capacitor_duty.h"
 #include "overtone/report.h"
 
 namespace overtone {
@@ -34,6 +35,58 @@ std::size_t Widest(std::size_t minimum, const auto& rows, const auto& name) {
   std::size_t w = minimum;
   for (const auto& r : rows) w = std::max(w, name(r).size());
   return w;
+}
+
+// Which IEEE 18 figures exceed their limits, e.g. "FAIL Vpeak, Irms".
+std::string DutyVerdict(const CapacitorDuty& c) {
+  if (c.pass) return "pass";
+  std::string text = "FAIL";
+  const auto flag = [&](bool over, const char* what) {
+    if (over) text += (text.size() == 4 ? " " : ", ") + std::string(what);
+  };
+  flag(c.vrms_percent > internal::kCapVrmsLimit, "Vrms");
+  flag(c.vpeak_percent > internal::kCapVpeakLimit, "Vpeak");
+  flag(c.irms_percent > internal::kCapIrmsLimit, "Irms");
+  flag(c.kvar_percent > internal::kCapKvarLimit, "kvar");
+  return text;
+}
+
+void PrintDutyAndResonances(const StudyResult& r, std::ostream& out) {
+  if (!r.capacitors.empty()) {
+    const std::size_t w = Widest(4, r.capacitors, [](const CapacitorDuty& c) -> const std::string& { return c.name; });
+    const std::size_t bw = Widest(3, r.capacitors, [](const CapacitorDuty& c) -> const std::string& { return c.bus; });
+    fmt::print(out, "\nCapacitor duty (IEEE 18, % of the steps in service; limits Vrms {}, Vpeak {}, "
+               "Irms {}, kvar {})\n{:<{}}  {:<{}}  {:>6}  {:>6}  {:>7}  {:>7}  {:>6}  {:>6}  {}\n",
+               internal::kCapVrmsLimit, internal::kCapVpeakLimit, internal::kCapIrmsLimit,
+               internal::kCapKvarLimit, "name", w, "bus", bw, "steps", "Vrms", "Vpeak", "(arith)", "Irms", "kvar", "result");
+    for (const CapacitorDuty& c : r.capacitors) {
+      const std::string steps = c.kind == "filter" ? "filter" : fmt::format("{}/{}", c.steps_on, c.steps);
+      fmt::print(out, "{:<{}}  {:<{}}  {:>6}  {:>6.1f}  {:>7.1f}  {:>7.1f}  {:>6.1f}  {:>6.1f}  {}\n",
+                 c.name, w, c.bus, bw, steps, c.vrms_percent, c.vpeak_percent, c.vpeak_arith_percent,
+                 c.irms_percent, c.kvar_percent, DutyVerdict(c));
+    }
+  }
+  if (!r.transformers.empty()) {
+    const std::size_t w = Widest(4, r.transformers, [](const TransformerDerating& t) -> const std::string& { return t.name; });
+    fmt::print(out, "\nTransformers (IEEE C57.110)\n{:<{}}  {:>6}  {:>8}  {:>9}  {:>6}\n", "name", w,
+               "F_HL", "K-factor", "derated %", "load %");
+    for (const TransformerDerating& t : r.transformers) {
+      fmt::print(out, "{:<{}}  {:>6.2f}  {:>8.2f}  {:>9.1f}  {:>6.1f}\n", t.name, w,
+                 t.harmonic_loss_factor, t.k_factor, t.derated_percent, t.load_percent);
+    }
+  }
+  if (!r.resonances.empty()) {
+    const std::size_t w = Widest(3, r.resonances, [](const Resonance& x) -> const std::string& { return x.bus; });
+    fmt::print(out, "\nResonances (present steps: {})\n{:<{}}  {:>6}  {:>9}  {:>13}  {:>4}  {}\n",
+               r.resonances.front().configuration, "bus", w, "order", "|Z| ohm", "amplification",
+               "near", "risk");
+    for (const Resonance& x : r.resonances) {
+      const ResonancePeak& p = x.peak;
+      fmt::print(out, "{:<{}}  {:>6.2f}  {:>9.4g}  {:>13.1f}  {:>4}  {}\n", x.bus, w, p.order,
+                 p.impedance_ohm, p.amplification, p.near_order > 0 ? std::to_string(p.near_order) : "-",
+                 ToString(p.risk));
+    }
+  }
 }
 
 }  // namespace
@@ -70,6 +123,7 @@ void PrintStudyTables(const StudyResult& r, std::ostream& out) {
                p.tdd_percent.value_or(0.0));
   }
   fmt::print(out, "\n");
+  PrintDutyAndResonances(r, out);
 
   if (!r.warnings.empty()) {
     fmt::print(out, "\nWarnings\n");

@@ -7,12 +7,16 @@
 
 #include <fmt/format.h>
 
+#include "capacitor_duty.h"
 #include "harmonic_solve.h"
 #include "indices.h"
 #include "load_flow.h"
 #include "network.h"
+#include "operating_point.h"
 #include "overtone/errors.h"
+#include "scan.h"
 #include "spectra.h"
+#include "transformer_derating.h"
 
 namespace overtone {
 namespace {
@@ -22,27 +26,6 @@ using internal::Injection;
 using internal::Network;
 
 constexpr double kDegPerRad = 180.0 / std::numbers::pi;
-
-// Refuses front ends whose spectrum needs the built-in bridge model (not in this version).
-void RequireTableSpectra(const Plant& plant) {
-  std::vector<Diagnostic> problems;
-  for (const Drive& d : plant.drives) {
-    if (!internal::NeedsBridgeModel(d.front_end)) continue;
-    problems.push_back({d.where, fmt::format(
-        "drive '{}': front end '{}' needs the built-in bridge model, which this version does not "
-        "have yet; give the group's spectrum as a table (front_end: measured, harmonics: [...])",
-        d.name, ToString(d.front_end))});
-  }
-  if (!problems.empty()) throw InputError(std::move(problems));
-}
-
-std::vector<Complex> PowerDrawn(const Plant& plant, const Network& net) {
-  std::vector<Complex> s(static_cast<std::size_t>(net.bus_count()));
-  for (const Load& l : plant.loads) s[net.BusIndex(l.bus)] += internal::LoadPower(l);
-  for (const Motor& m : plant.motors) s[net.BusIndex(m.bus)] += internal::MotorPower(m);
-  for (const Drive& d : plant.drives) s[net.BusIndex(d.bus)] += internal::TableDrivePower(d);
-  return s;
-}
 
 Spectrum Scaled(const std::vector<Complex>& pu, double scale) {
   Spectrum s;
@@ -91,18 +74,6 @@ bool ReachesSource(const Network& net, int start, int blocked) {
   return false;
 }
 
-// Thevenin impedance at a bus with sources and series branches only (pu).
-Complex ShortCircuitImpedance(const Network& net, int bus) {
-  std::vector<Complex> values(static_cast<std::size_t>(net.pattern().nnz()));
-  net.Fill(1.0, internal::Sequence::kPositive, internal::Shunts::kShortCircuit, values);
-  internal::SparseAnalysis analysis(net.pattern());
-  internal::SparseLu<Complex> lu(analysis);
-  std::vector<Complex> e(static_cast<std::size_t>(net.bus_count()));
-  e[bus] = 1.0;
-  if (!lu.Factor(values) || !lu.Solve(e)) throw SolveError("the short-circuit network is singular");
-  return e[bus];
-}
-
 PccResult AssessPcc(const Plant& plant, const Network& net, const internal::HarmonicSolution& sol,
                     std::vector<std::string>& warnings) {
   PccResult pcc;
@@ -129,7 +100,7 @@ PccResult AssessPcc(const Plant& plant, const Network& net, const internal::Harm
     }
   }
   pcc.current_a = Scaled(current, base_a);
-  pcc.isc_a = base_a / std::abs(ShortCircuitImpedance(net, p));
+  pcc.isc_a = base_a / std::abs(internal::ShortCircuitImpedances(net, {p}, internal::SourceSet::kSuppliesOnly)[0]);
 
   if (plant.study.demand_current_a) {
     pcc.demand_current_a = plant.study.demand_current_a;
@@ -178,26 +149,22 @@ const std::vector<std::string>& StandardCautions() {
 }
 
 StudyResult RunStudy(const Plant& plant, const StudyOptions& options) {
-  RequireTableSpectra(plant);
   const Network net(plant);
   const int max_order = plant.study.max_order;
   StudyResult result;
   result.study = plant.study;
   result.cautions = StandardCautions();
 
-  // Fundamental.
-  const internal::LoadFlowResult flow = internal::SolveLoadFlow(net, PowerDrawn(plant, net));
+  // Fundamental operating point, with each drive group's spectrum.
+  const internal::OperatingPoint op = internal::SolveOperatingPoint(plant, net, result.warnings);
+  const internal::LoadFlowResult& flow = op.flow;
   result.load_flow_iterations = flow.iterations;
 
   // Injections: drive groups (drawn current, so injected with a minus sign) and supply backgrounds.
   std::vector<std::vector<Injection>> injections(static_cast<std::size_t>(max_order) + 1);
-  std::vector<std::vector<Complex>> drive_currents;
-  for (const Drive& d : plant.drives) {
-    const int bus = net.BusIndex(d.bus);
-    const Complex v1 = flow.voltage[bus];
-    const Complex i1 = std::conj(internal::TableDrivePower(d) / v1);
-    drive_currents.push_back(internal::TableSpectrum(d, i1, max_order, result.warnings));
-    for (int h = 2; h <= max_order; ++h) injections[h].push_back({bus, -drive_currents.back()[h]});
+  for (std::size_t k = 0; k < plant.drives.size(); ++k) {
+    const int bus = net.BusIndex(plant.drives[k].bus);
+    for (int h = 2; h <= max_order; ++h) injections[h].push_back({bus, -op.drives[k].current[h]});
   }
   for (const auto& s : net.sources()) {
     if (!s.supply) continue;
@@ -222,7 +189,7 @@ StudyResult RunStudy(const Plant& plant, const StudyOptions& options) {
     b.nominal_v = net.nominal_v(i);
     b.voltage_pu.by_order.resize(static_cast<std::size_t>(max_order) + 1);
     for (int h = 1; h <= max_order; ++h) b.voltage_pu.by_order[h] = sol.at(h, i);
-    b.indices = internal::ComputeIndices(b.voltage_pu.by_order);
+    b.indices = internal::ComputeIndices(b.voltage_pu.by_order, internal::kNegligibleVoltagePu);
     result.buses.push_back(std::move(b));
   }
   for (const auto& br : net.branches()) {
@@ -237,7 +204,7 @@ StudyResult RunStudy(const Plant& plant, const StudyOptions& options) {
       current[h] = st.yff * sol.at(h, br.from) + st.yft * sol.at(h, br.to);
     }
     r.current_a = Scaled(current, net.BaseAmps(br.from));
-    r.indices = internal::ComputeIndices(r.current_a.by_order);
+    r.indices = internal::ComputeIndices(r.current_a.by_order, internal::kNegligibleCurrentA);
     result.branches.push_back(std::move(r));
   }
   for (std::size_t k = 0; k < plant.drives.size(); ++k) {
@@ -247,11 +214,28 @@ StudyResult RunStudy(const Plant& plant, const StudyOptions& options) {
     r.bus = d.bus;
     r.count = d.count;
     r.front_end = d.front_end;
-    r.current_a = Scaled(drive_currents[k], net.BaseAmps(net.BusIndex(d.bus)));
-    r.indices = internal::ComputeIndices(r.current_a.by_order);
+    r.current_a = Scaled(op.drives[k].current, net.BaseAmps(net.BusIndex(d.bus)));
+    r.indices = internal::ComputeIndices(r.current_a.by_order, internal::kNegligibleCurrentA);
+    if (const auto& bridge = op.drives[k].bridge) {
+      r.vdc_v = bridge->dc_voltage_v;
+      r.peak_current_a = bridge->peak_current_a;
+      r.conduction_deg = bridge->conduction_deg;
+      r.overlap_deg = bridge->overlap_deg;
+      if (options.keep_waveforms) {
+        const internal::BridgeWaveform& w = bridge->waveform;
+        for (double t : w.theta) r.waveform.theta_deg.push_back(t * kDegPerRad);
+        r.waveform.line_current_a = w.line_current;
+        r.waveform.voltage_v = w.terminal_voltage;
+        r.waveform.dc_voltage_v = w.dc_voltage;
+      }
+    }
     result.drives.push_back(std::move(r));
   }
   result.pcc = AssessPcc(plant, net, sol, result.warnings);
+  // Capacitor duty, transformer derating and resonance screening (docs/resonance.md).
+  result.capacitors = internal::CapacitorDuties(plant, result.buses);
+  result.transformers = internal::TransformerDeratings(plant, result.branches);
+  if (options.scan) result.resonances = internal::ScreenPresentState(plant, result, options.threads);
   return result;
 }
 

@@ -19,6 +19,8 @@ using Phasor = std::complex<double>;
 
 struct StudyOptions {
   int threads = 0;  // worker threads for the per-order solves; 0 = all cores
+  bool scan = true;  // resonance screening of the present step state (`--no-scan` clears it)
+  bool keep_waveforms = false;  // keep one period of each bridge group's waveforms
 };
 
 // A quantity at every order 1..max_order; index 0 is unused so that at(h) reads naturally.
@@ -51,6 +53,14 @@ struct BranchResult {
   WaveformIndices indices;
 };
 
+// One period of a bridge group's representative circuit (for charts and CSV), study frame.
+struct DriveWaveform {
+  std::vector<double> theta_deg;
+  std::vector<double> line_current_a;  // phase a (single-phase: one line pair's units)
+  std::vector<double> voltage_v;       // at the terminal, phase a to neutral (single-phase: line to line)
+  std::vector<double> dc_voltage_v;
+};
+
 struct DriveResult {
   std::string name;
   std::string bus;
@@ -58,6 +68,12 @@ struct DriveResult {
   FrontEnd front_end = FrontEnd::kMeasured;
   Spectrum current_a;  // drawn from the bus (load convention)
   WaveformIndices indices;
+  // From the built-in bridge model only (absent for table spectra).
+  std::optional<double> vdc_v;           // mean DC-link voltage
+  std::optional<double> peak_current_a;  // of the simulated line current
+  std::optional<double> conduction_deg;  // per half cycle a line carries current
+  std::optional<double> overlap_deg;     // commutation overlap (current-stiff bridges)
+  DriveWaveform waveform;                // filled when StudyOptions::keep_waveforms
 };
 
 struct PccHarmonic {
@@ -76,12 +92,62 @@ struct PccResult {
   std::vector<PccHarmonic> harmonics;
 };
 
+// IEEE Std 18 duty of a capacitor bank (steps in service) or of a filter's capacitor, in percent
+// of the rating of the steps in service; voltages are across the capacitor itself (behind the
+// detuning or filter reactor).
+struct CapacitorDuty {
+  std::string name;
+  std::string bus;
+  std::string kind;  // "capacitor" or "filter"
+  int steps_on = 1;
+  int steps = 1;
+  double vrms_percent = 0.0;
+  double vpeak_percent = 0.0;        // waveform rebuilt with angles
+  double vpeak_arith_percent = 0.0;  // arithmetic sum of the harmonic peaks (conservative bound)
+  double irms_percent = 0.0;
+  double kvar_percent = 0.0;         // sum over orders of V_h I_h
+  double fundamental_rise = 1.0;     // |V_C1| / |V_bus1|: about 1/(1-p) behind a reactor
+  std::optional<double> reactor_irms_a;  // filters and detuned banks
+  bool pass = true;                  // every figure within the IEEE 18 limits
+};
+
+// IEEE Std C57.110 figures of a transformer carrying the study's non-sinusoidal current.
+struct TransformerDerating {
+  std::string name;
+  double harmonic_loss_factor = 1.0;  // F_HL for winding eddy-current loss
+  double k_factor = 1.0;              // normalised to the actual rms current: equals F_HL
+  double derated_percent = 100.0;     // largest rms current of this shape, percent of rated
+  double load_percent = 0.0;          // the study's rms current, percent of rated
+};
+
+// Resonance risk of a driving-point impedance peak (rule in docs/resonance.md).
+enum class Risk { kLow, kMedium, kHigh };
+std::string ToString(Risk risk);
+
+// A peak of the driving-point impedance |Z(h)| at a bus.
+struct ResonancePeak {
+  double order = 0.0;          // fractional harmonic order
+  double impedance_ohm = 0.0;  // |Z| at the peak
+  double amplification = 1.0;  // |Z| over |Z| of the same network without capacitors and filters
+  int near_order = 0;          // injected order (>= 1 % of a drive group) nearest the peak; 0: none
+  Risk risk = Risk::kLow;
+};
+
+struct Resonance {
+  std::string bus;
+  std::string configuration;  // e.g. "PFC-1 6/6, PFC-2 0/4"
+  ResonancePeak peak;
+};
+
 struct StudyResult {
   StudySettings study;
   std::vector<BusResult> buses;
   std::vector<BranchResult> branches;  // transformers, then cables, in file order
   std::vector<DriveResult> drives;
   PccResult pcc;
+  std::vector<CapacitorDuty> capacitors;     // banks with steps in service, then filters
+  std::vector<TransformerDerating> transformers;
+  std::vector<Resonance> resonances;         // present step state, pcc and capacitor/filter buses
   int load_flow_iterations = 0;
   std::vector<std::string> warnings;
   std::vector<std::string> cautions;

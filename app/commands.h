@@ -1,0 +1,30 @@
+// app/commands.h — each subcommand registers its options and returns the function that runs it.
+#ifndef OVERTONE_APP_COMMANDS_H_
+#define OVERTONE_APP_COMMANDS_H_
+
+#include <functional>
+
+#include <CLI/CLI.hpp>
+
+namespace overtone::app {
+
+// Exit statuses (PLANT-FORMAT.md "Exit status").
+constexpr int kExitOk = 0;
+constexpr int kExitInternal = 1;
+constexpr int kExitBadInput = 2;
+constexpr int kExitViolation = 3;
+constexpr int kExitUnsolvable = 4;
+
+// A registered subcommand and what runs it once its arguments are parsed.
+struct Command {
+  CLI::App* cli = nullptr;
+  std::function<int()> run;
+};
+
+Command AddCheckCommand(CLI::App& app);
+Command AddStudyCommand(CLI::App& app);
+Command AddScanCommand(CLI::App& app);
+
+}  // namespace overtone::app
+
+#endif  // OVERTONE_APP_COMMANDS_H_

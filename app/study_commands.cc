@@ -1,0 +1,60 @@
+// app/study_commands.cc — `overtone check` and `overtone study`.
+#include <iostream>
+#include <memory>
+
+#include "commands.h"
+#include "overtone/load.h"
+#include "overtone/report.h"
+#include "overtone/study.h"
+
+namespace overtone::app {
+
+Command AddCheckCommand(CLI::App& app) {
+  auto plant_path = std::make_shared<std::string>();
+  CLI::App* cmd = app.add_subcommand("check", "Validate a plant file and print a one-screen summary");
+  cmd->add_option("PLANT", *plant_path, "plant file (YAML, format 1)")->required();
+  return {cmd, [plant_path]() {
+    const Plant plant = LoadPlant(*plant_path);
+    PrintPlantSummary(plant, std::cout);
+    std::cout << "no errors found\n";
+    return kExitOk;
+  }};
+}
+
+Command AddStudyCommand(CLI::App& app) {
+  struct Args {
+    std::string plant, json, csv_dir;
+    int threads = 0;
+    bool no_scan = false;
+  };
+  auto args = std::make_shared<Args>();
+  CLI::App* cmd = app.add_subcommand(
+      "study", "Load flow, drive spectra and harmonic solve: bus distortion tables");
+  cmd->add_option("PLANT", args->plant, "plant file (YAML, format 1)")->required();
+  cmd->add_option("--json", args->json, "write the results as JSON to FILE ('-' for standard output)")
+      ->type_name("FILE");
+  cmd->add_option("--csv", args->csv_dir,
+                  "write buses.csv, bus_harmonics.csv, drives.csv, branches.csv into DIR")
+      ->type_name("DIR");
+  cmd->add_option("--threads", args->threads, "worker threads for the harmonic orders (0 = all cores)")
+      ->check(CLI::Range(0, 1024));
+  cmd->add_flag("--no-scan", args->no_scan, "leave resonance screening (frequency scan) out");
+  return {cmd, [args]() {
+    const Plant plant = LoadPlant(args->plant);
+    StudyOptions options;
+    options.threads = args->threads;
+    options.scan = !args->no_scan;
+    const StudyResult result = RunStudy(plant, options);
+    // Everything is computed before the first byte is written: a failure leaves no partial output.
+    if (args->json == "-") {
+      WriteStudyJson(result, std::cout);
+    } else if (!args->json.empty()) {
+      WriteFileAtomically(args->json, [&](std::ostream& out) { WriteStudyJson(result, out); });
+    }
+    if (!args->csv_dir.empty()) WriteStudyCsv(result, args->csv_dir);
+    if (args->json != "-") PrintStudyTables(result, std::cout);
+    return kExitOk;
+  }};
+}
+
+}  // namespace overtone::app

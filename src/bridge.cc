@@ -1,0 +1,469 @@
+// src/bridge.cc — rectifier circuits, their periodic steady state and the Fourier series.
+//
+// The six-pulse bridge: phase k has EMF e_k = sqrt(2/3) cos(theta - 2 pi k / 3) behind r + jx
+// (supply plus reactor). Each phase is connected to the positive rail P (top valve on), to the
+// negative rail N (bottom valve on) or to nothing. With the connected phases known the circuit is
+// linear: x i_k' = e_k - r i_k - v_P (or v_N), sum of connected i_k' = 0, and on the DC side either
+// v_P - v_N = v_C + x_dc i_d' with C v_C' = i_d - G v_C (capacitor link), or i_d constant
+// (current-stiff link). A valve turns off when its current reaches zero and a diode turns on when
+// its phase EMF passes the rail it would join; a thyristor turns on at its gate instant.
+// Standard textbook circuit: N. Mohan, T. Undeland, W. Robbins, "Power Electronics", 3rd ed.,
+// chapter 5 (diode rectifiers) and chapter 6 (phase-controlled rectifiers).
+#include "bridge.h"
+
+#include <array>
+#include <cmath>
+#include <cstdlib>
+#include <numbers>
+
+#include <fmt/format.h>
+
+#include "overtone/errors.h"
+#include "switched_circuit.h"
+
+namespace overtone::internal {
+namespace {
+
+using Complex = std::complex<double>;
+constexpr double kPi = std::numbers::pi;
+constexpr int kSamplesPerCycle = 1440;  // 0.25 degree grid; switching instants are exact
+constexpr int kVdc = 3;                  // state index of the DC capacitor voltage
+const double kPhasePeak = std::sqrt(2.0 / 3.0);
+
+SwitchingRow Unit(int i) {
+  SwitchingRow r = SwitchingRow::Zero();
+  r[i] = 1.0;
+  return r;
+}
+
+// amplitude * cos(theta + phase) as a row acting on the oscillator states.
+SwitchingRow Sinusoid(double amplitude, double phase) {
+  SwitchingRow r = SwitchingRow::Zero();
+  r[kCos] = amplitude * std::cos(phase);
+  r[kSin] = -amplitude * std::sin(phase);
+  return r;
+}
+
+// sin(theta - at): rises through zero at theta = at (a timed event).
+SwitchingRow TimedRow(double at) { return Sinusoid(1.0, -at - kPi / 2.0); }
+
+void Oscillate(StateMatrix& a) {
+  a(kCos, kSin) = -1.0;
+  a(kSin, kCos) = 1.0;
+}
+
+void SetTheta(StateVector& z, double theta) {
+  z[kCos] = std::cos(theta);
+  z[kSin] = std::sin(theta);
+}
+
+// ---- Six-pulse bridge -------------------------------------------------------------------------
+
+using Connection = std::array<int, 3>;  // +1 on P, -1 on N, 0 open, for phases a, b, c
+
+double PhaseOf(int k) { return -2.0 * kPi * k / 3.0; }
+
+int Encode(const Connection& c) { return (c[0] + 1) + 3 * (c[1] + 1) + 9 * (c[2] + 1); }
+Connection Decode(int id) { return {id % 3 - 1, (id / 3) % 3 - 1, (id / 9) % 3 - 1}; }
+
+// Current flows only with a phase on each rail; anything else is the open bridge.
+int Normalized(Connection c) {
+  bool plus = false, minus = false;
+  for (int k : c) {
+    plus |= k > 0;
+    minus |= k < 0;
+  }
+  if (!plus || !minus) c = {0, 0, 0};
+  return Encode(c);
+}
+
+class SixPulseCircuit : public SwitchedCircuit {
+ public:
+  // `level` is the load conductance G of a capacitor link or the current I_d of a stiff link.
+  SixPulseCircuit(const BridgeParameters& p, double level)
+      : p_(p), x_(p.x_supply + p.x_reactor), capacitor_(p.circuit == BridgeCircuit::kSixPulseCapacitor),
+        g_(capacitor_ ? level : 0.0), i_dc_(capacitor_ ? 0.0 : level) {}
+
+  Topology Build(int id) const override {
+    const Connection c = Decode(id);
+    Topology t;
+    Oscillate(t.a);
+    std::vector<int> on;
+    for (int k = 0; k < 3; ++k) {
+      if (c[k] != 0) on.push_back(k);
+    }
+    if (on.empty()) {
+      if (capacitor_) t.a(kVdc, kVdc) = -g_ / p_.b_dc;
+      t.output = capacitor_ ? Unit(kVdc) : SwitchingRow::Zero();
+      for (int hi = 0; hi < 3; ++hi) {
+        for (int lo = 0; lo < 3; ++lo) {
+          if (hi == lo) continue;
+          Connection n{0, 0, 0};
+          n[hi] = 1;
+          n[lo] = -1;
+          SwitchingRow row = Emf(hi) - Emf(lo);
+          if (capacitor_) row -= Unit(kVdc);
+          if (p_.thyristor) continue;  // a stiff thyristor bridge never opens completely
+          t.Add(row, Encode(n));
+        }
+      }
+      return t;
+    }
+    // Unknowns: i_k' for the connected phases, then v_P, v_N; each a linear function of z.
+    const int m = static_cast<int>(on.size());
+    Eigen::MatrixXd lhs = Eigen::MatrixXd::Zero(m + 2, m + 2);
+    Eigen::MatrixXd rhs = Eigen::MatrixXd::Zero(m + 2, kStateSize);
+    for (int j = 0; j < m; ++j) {
+      const int k = on[j];
+      lhs(j, j) = x_;
+      lhs(j, c[k] > 0 ? m : m + 1) = 1.0;
+      rhs.row(j) = Emf(k) - p_.r_supply * Unit(k);
+      lhs(m, j) = 1.0;  // the connected currents sum to zero
+    }
+    if (capacitor_) {  // v_P - v_N - x_dc i_d' = v_C
+      lhs(m + 1, m) = 1.0;
+      lhs(m + 1, m + 1) = -1.0;
+      for (int j = 0; j < m; ++j) {
+        if (c[on[j]] > 0) lhs(m + 1, j) = -p_.x_dc;
+      }
+      rhs.row(m + 1) = Unit(kVdc);
+    } else {  // i_d' = 0
+      for (int j = 0; j < m; ++j) {
+        if (c[on[j]] > 0) lhs(m + 1, j) = 1.0;
+      }
+    }
+    const Eigen::MatrixXd solved = lhs.fullPivLu().solve(rhs);
+    for (int j = 0; j < m; ++j) t.a.row(on[j]) = solved.row(j);
+    const SwitchingRow v_p = solved.row(m), v_n = solved.row(m + 1);
+    if (capacitor_) {
+      for (int k : on) {
+        if (c[k] > 0) t.a(kVdc, k) = 1.0 / p_.b_dc;
+      }
+      t.a(kVdc, kVdc) = -g_ / p_.b_dc;
+    }
+    t.output = v_p - v_n;
+    for (int k = 0; k < 3; ++k) {
+      Connection n = c;
+      if (c[k] != 0) {  // the valve carrying this phase turns off at zero current
+        n[k] = 0;
+        t.Add(c[k] > 0 ? SwitchingRow(-Unit(k)) : Unit(k), Normalized(n));
+        continue;
+      }
+      n[k] = 1;
+      const int to_top = Normalized(n);
+      n[k] = -1;
+      const int to_bottom = Normalized(n);
+      if (p_.thyristor) {
+        t.Add(TimedRow(GateAngle(k, true)), to_top, true);
+        t.Add(TimedRow(GateAngle(k, false)), to_bottom, true);
+      } else {
+        t.Add(Emf(k) - v_p, to_top);
+        t.Add(v_n - Emf(k), to_bottom);
+      }
+    }
+    return t;
+  }
+
+  // Open phases carry exactly zero; the connected currents keep summing to zero (and to I_d on
+  // each rail of a stiff link), so round-off at the switching instants cannot accumulate.
+  void Enter(int id, StateVector& z) const override {
+    const Connection c = Decode(id);
+    for (int k = 0; k < 3; ++k) {
+      if (c[k] == 0) z[k] = 0.0;
+    }
+    for (int rail : {1, -1}) {
+      int largest = -1;
+      double sum = 0.0;
+      for (int k = 0; k < 3; ++k) {
+        if (c[k] != rail) continue;
+        sum += z[k];
+        if (largest < 0 || std::abs(z[k]) > std::abs(z[largest])) largest = k;
+      }
+      if (largest < 0) continue;
+      if (capacitor_ && rail < 0) continue;  // one rail suffices: it is matched to the other
+      const double target = capacitor_ ? -RailCurrent(c, z, -1) : rail * i_dc_;
+      z[largest] += target - sum;
+    }
+  }
+
+  static double RailCurrent(const Connection& c, const StateVector& z, int rail) {
+    double sum = 0.0;
+    for (int k = 0; k < 3; ++k) {
+      if (c[k] == rail) sum += z[k];
+    }
+    return sum;
+  }
+
+  // Gate instant of a valve: its natural commutation point (where its EMF becomes the highest,
+  // or the lowest) plus the firing delay.
+  double GateAngle(int k, bool top) const {
+    const double peak = -PhaseOf(k);
+    return peak + (top ? -kPi / 3.0 : 2.0 * kPi / 3.0) + p_.firing_deg * kPi / 180.0;
+  }
+
+  // The six-pulse pattern repeats every 60 degrees with the phases relabelled and the polarity
+  // reversed: x(theta + 60) = P x(theta), (P x)_a = -x_b. Maps a state at theta0 + 60 back.
+  static void Rotate(StateVector& z, int& id, double theta0) {
+    const StateVector old = z;
+    z[0] = -old[2];
+    z[1] = -old[0];
+    z[2] = -old[1];
+    SetTheta(z, theta0);
+    const Connection c = Decode(id);
+    id = Encode({-c[2], -c[0], -c[1]});
+  }
+
+  SwitchingRow Emf(int k) const { return Sinusoid(kPhasePeak, PhaseOf(k)); }
+
+ private:
+  BridgeParameters p_;
+  double x_;
+  bool capacitor_;
+  double g_;
+  double i_dc_;
+};
+
+// ---- Single-phase bridge on one line pair -----------------------------------------------------
+// State: z[0] = bridge current i >= 0, z[3] = v_C. Topology 0 open, 1 conducting with the line
+// pair voltage positive, 2 with it negative. EMF e = sqrt(2) cos(theta + 30 deg) (line a to b).
+
+class SinglePhaseCircuit : public SwitchedCircuit {
+ public:
+  SinglePhaseCircuit(const BridgeParameters& p, double g_load) : p_(p), g_(g_load) {}
+
+  Topology Build(int id) const override {
+    Topology t;
+    Oscillate(t.a);
+    t.a(kVdc, kVdc) = -g_ / p_.b_dc;
+    t.output = Unit(kVdc);
+    if (id == 0) {
+      t.Add(Emf() - Unit(kVdc), 1);
+      t.Add(-Emf() - Unit(kVdc), 2);
+      return t;
+    }
+    const double sign = id == 1 ? 1.0 : -1.0;
+    const double x = p_.x_supply + p_.x_reactor + p_.x_dc;
+    t.a.row(0) = (sign * Emf() - p_.r_supply * Unit(0) - Unit(kVdc)) / x;
+    t.a(kVdc, 0) = 1.0 / p_.b_dc;
+    t.Add(-Unit(0), 0);
+    return t;
+  }
+
+  void Enter(int id, StateVector& z) const override {
+    if (id == 0) z[0] = 0.0;
+  }
+
+  static SwitchingRow Emf() { return Sinusoid(std::sqrt(2.0), kPi / 6.0); }
+  static double Sign(int id) { return id == 1 ? 1.0 : (id == 2 ? -1.0 : 0.0); }
+
+  // Half-wave symmetry: the same bridge state with the line pair's polarity reversed.
+  static void Rotate(StateVector& z, int& id, double theta0) {
+    SetTheta(z, theta0);
+    id = id == 0 ? 0 : 3 - id;
+  }
+
+ private:
+  BridgeParameters p_;
+  double g_;
+};
+
+// ---- Periodic steady state ----------------------------------------------------------------------
+
+struct PeriodicState {
+  StateVector z = StateVector::Zero();
+  int topology = 0;
+};
+
+// Finds the fixed point of the symmetry segment map F(x) = R(Phi(x)) (Phi: one segment of the
+// circuit, R: the symmetry that maps its end back to theta0) by Newton's method on F(x) - x with
+// a finite-difference Jacobian (shooting; e.g. T. J. Aprille, T. N. Trick, Proc. IEEE 60(1),
+// 1972), after two plain iterations for a good start. A step that does not reduce the residual
+// falls back to the plain iteration, which contracts for these damped circuits.
+template <typename RotateFn>
+PeriodicState FindPeriodicState(Simulator& sim, PeriodicState x, int steps_per_segment,
+                                double theta0, RotateFn rotate) {
+  constexpr int kCircuitStates = 4;
+  using Circuit = Eigen::Matrix<double, kCircuitStates, 1>;
+  const auto segment = [&](PeriodicState s) {
+    sim.Settle(s.z, s.topology);
+    sim.Run(s.z, s.topology, steps_per_segment);
+    rotate(s.z, s.topology, theta0);
+    sim.Settle(s.z, s.topology);
+    return s;
+  };
+  const auto residual = [](const PeriodicState& from, const PeriodicState& to) -> Circuit {
+    return (to.z - from.z).head<kCircuitStates>();
+  };
+  sim.Settle(x.z, x.topology);
+  for (int n = 0; n < 200; ++n) {
+    const PeriodicState y = segment(x);
+    const Circuit r = residual(x, y);
+    const double scale = std::max(1.0, y.z.head<kCircuitStates>().lpNorm<Eigen::Infinity>());
+    if (std::getenv("BRIDGE_DEBUG")) fmt::print(stderr, "it {} top {}->{} z {} {} {} {} r {}\n", n, x.topology, y.topology, x.z[0], x.z[1], x.z[2], x.z[3], r.lpNorm<Eigen::Infinity>());
+    if (r.lpNorm<Eigen::Infinity>() < 1e-11 * scale) return y;
+    if (n < 2) {
+      x = y;
+      continue;
+    }
+    Eigen::Matrix<double, kCircuitStates, kCircuitStates> jacobian;
+    for (int j = 0; j < kCircuitStates; ++j) {
+      PeriodicState xp = x;
+      const double delta = 1e-7 * std::max(1.0, std::abs(x.z[j]));
+      xp.z[j] += delta;
+      jacobian.col(j) = (residual(xp, segment(xp)) - r) / delta;
+    }
+    const Circuit step = -jacobian.fullPivLu().solve(r);
+    PeriodicState trial = x;
+    trial.z.head<kCircuitStates>() += step;
+    const Circuit trial_residual = residual(trial, segment(trial));
+    if (step.allFinite() && trial_residual.lpNorm<Eigen::Infinity>() < r.lpNorm<Eigen::Infinity>()) {
+      x = trial;
+    } else {
+      x = y;
+    }
+  }
+  throw SolveError("bridge simulation: no periodic steady state after 200 shooting steps");
+}
+
+// Fourier series of a piecewise-linear interpolant through (theta_n, x_n) over one period:
+// rms cosine phasors X_h = 1/(sqrt(2) pi) * integral x(theta) exp(-j h theta) dtheta, each segment
+// integrated exactly. Switching instants are among the points, so the kinks of the waveform are
+// resolved exactly rather than smeared over a grid step.
+std::vector<Complex> FourierSeries(const std::vector<double>& theta, const std::vector<double>& x,
+                                   int max_order) {
+  std::vector<Complex> out(static_cast<std::size_t>(max_order) + 1);
+  std::vector<Complex> base(theta.size()), power(theta.size(), Complex{1.0, 0.0});
+  for (std::size_t n = 0; n < theta.size(); ++n) base[n] = std::polar(1.0, -theta[n]);
+  for (int h = 1; h <= max_order; ++h) {
+    const Complex a{0.0, -static_cast<double>(h)};
+    for (std::size_t n = 0; n < theta.size(); ++n) power[n] *= base[n];
+    Complex sum;
+    for (std::size_t n = 0; n + 1 < theta.size(); ++n) {
+      const double width = theta[n + 1] - theta[n];
+      if (width <= 0.0) continue;
+      const Complex e0 = power[n], e1 = power[n + 1];
+      const double slope = (x[n + 1] - x[n]) / width;
+      sum += x[n] * (e1 - e0) / a + slope * (width * e1 / a - (e1 - e0) / (a * a));
+    }
+    out[h] = sum / (std::sqrt(2.0) * kPi);
+  }
+  return out;
+}
+
+// One period from a periodic state: spectrum, power, DC voltage and waveform.
+BridgeSolution SampleCycle(const BridgeParameters& p, Simulator& sim, PeriodicState x,
+                           double theta0, int max_order) {
+  const bool single_phase = p.circuit == BridgeCircuit::kSinglePhase;
+  const double dt = 2.0 * kPi / kSamplesPerCycle;
+  const SwitchingRow emf = single_phase ? SinglePhaseCircuit::Emf() : Sinusoid(kPhasePeak, 0.0);
+  const auto line_current = [&](const StateVector& z, int id) {
+    return (single_phase ? SinglePhaseCircuit::Sign(id) : 1.0) * z[0];
+  };
+  BridgeSolution s;
+  BridgeWaveform& w = s.waveform;
+  std::vector<double> points{theta0}, values{line_current(x.z, x.topology)};
+  double power = 0.0, dc = 0.0;
+  int conducting = 0, overlapping = 0;
+  double theta = theta0;
+  const auto on_switch = [&](double offset, const StateVector& z, int id) {
+    if (std::getenv("BRIDGE_SW")) fmt::print(stderr, "switch at {:.3f} from {} i {} {} {}\n", (theta + offset) * 180 / kPi, id, z[0], z[1], z[2]);
+    points.push_back(theta + offset);
+    values.push_back(line_current(z, id));
+  };
+  const auto on_sample = [&](const StateVector& z, int id) {
+    theta += dt;
+    if (std::getenv("BRIDGE_SW") && (static_cast<int>(std::lround((theta - theta0) / dt)) % 60 == 0)) fmt::print(stderr, "sample {:.2f} id {} z {} {} {} c {} s {}\n", theta * 180 / kPi, id, z[0], z[1], z[2], z[4], z[5]);
+    const Topology& t = sim.TopologyOf(id);
+    const double i = line_current(z, id);
+    const double di = line_current(t.a * z, id);
+    const double e = emf.dot(z);
+    const double v_dc = p.circuit == BridgeCircuit::kSixPulseStiff ? t.output.dot(z) : z[kVdc];
+    points.push_back(theta);
+    values.push_back(i);
+    w.theta.push_back(theta);
+    w.line_current.push_back(i);
+    w.terminal_voltage.push_back(e - p.r_supply * i - p.x_supply * di);
+    w.dc_voltage.push_back(v_dc);
+    power += e * i - p.r_supply * i * i;
+    dc += v_dc;
+    conducting += std::abs(i) > 1e-9;
+    if (!single_phase) {
+      const Connection c = Decode(id);
+      overlapping += c[0] != 0 && c[1] != 0 && c[2] != 0;
+    }
+    s.peak_current = std::max(s.peak_current, std::abs(i));
+  };
+  sim.Run(x.z, x.topology, kSamplesPerCycle, on_sample, on_switch);
+  s.current = FourierSeries(points, values, max_order);
+  if (std::getenv("BRIDGE_POINTS")) for (std::size_t n = 0; n < points.size(); ++n) if (std::fmod(points[n]*180/kPi, 60.0) < 1.0 || std::fmod(points[n]*180/kPi, 60.0) > 59.0) fmt::print(stderr, "pt {:.5f} {:.6f}\n", points[n]*180/kPi, values[n]);
+  s.power = (single_phase ? 1.0 : 3.0) * power / kSamplesPerCycle;
+  s.dc_voltage = dc / kSamplesPerCycle;
+  s.conduction_deg = 180.0 * conducting / kSamplesPerCycle;
+  s.overlap_deg = 360.0 * overlapping / kSamplesPerCycle / 6.0;
+  return s;
+}
+
+// Steady state and samples for one value of the free parameter (load conductance or DC current).
+BridgeSolution Evaluate(const BridgeParameters& p, double parameter, PeriodicState& warm,
+                        int max_order) {
+  const double dt = 2.0 * kPi / kSamplesPerCycle;
+  if (p.circuit == BridgeCircuit::kSinglePhase) {
+    SinglePhaseCircuit circuit(p, parameter);
+    Simulator sim(circuit, dt);
+    warm = FindPeriodicState(sim, warm, kSamplesPerCycle / 2, 0.0, SinglePhaseCircuit::Rotate);
+    return SampleCycle(p, sim, warm, 0.0, max_order);
+  }
+  SixPulseCircuit circuit(p, parameter);
+  Simulator sim(circuit, dt);
+  // Start midway between natural commutation points (multiples of 60 degrees, delayed by the
+  // firing angle), where the segment map is smooth.
+  const double theta0 = kPi / 6.0 + p.firing_deg * kPi / 180.0;
+  if (p.circuit == BridgeCircuit::kSixPulseStiff) {
+    // Phase a on the top rail and c on the bottom carry the DC current at theta0; only the
+    // level changes between evaluations.
+    warm.z = StateVector::Zero();
+    warm.z[0] = parameter;
+    warm.z[2] = -parameter;
+    warm.topology = Encode({1, 0, -1});
+  }
+  SetTheta(warm.z, theta0);
+  warm = FindPeriodicState(sim, warm, kSamplesPerCycle / 6, theta0, SixPulseCircuit::Rotate);
+  return SampleCycle(p, sim, warm, theta0, max_order);
+}
+
+}  // namespace
+
+BridgeSolution SolveBridge(const BridgeParameters& p, int max_order) {
+  const bool stiff = p.circuit == BridgeCircuit::kSixPulseStiff;
+  const double cos_alpha = std::cos(p.firing_deg * kPi / 180.0);
+  PeriodicState warm;
+  if (!stiff) {
+    // Open bridge with the DC link charged to the EMF's line-to-line peak.
+    warm.z[kVdc] = std::sqrt(2.0);
+  }
+  // Free parameter: P ~ G V_dc^2 with V_dc ~ 1.35 V (capacitor), P ~ 1.35 V cos(alpha) I_d (stiff).
+  double x0 = stiff ? p.power / (1.35 * cos_alpha) : p.power / (1.35 * 1.35);
+  if (p.power <= 0.0) {
+    return Evaluate(p, stiff ? 0.0 : 1e-9, warm, max_order);
+  }
+  BridgeSolution s0 = Evaluate(p, x0, warm, max_order);
+  double x1 = x0 * p.power / std::max(s0.power, 1e-12);
+  for (int it = 0; it < 40; ++it) {
+    BridgeSolution s1 = Evaluate(p, x1, warm, max_order);
+    if (std::getenv("BRIDGE_DEBUG2")) fmt::print(stderr, "power it {} x {} P {} vdc {}\n", it, x1, s1.power, s1.dc_voltage);
+    if (std::abs(s1.power - p.power) <= 1e-9 + 1e-7 * p.power) return s1;
+    // Secant on (parameter, power); the power rises with either parameter.
+    const double slope = (s1.power - s0.power) / (x1 - x0);
+    double x2 = slope > 0.0 ? x1 + (p.power - s1.power) / slope : 2.0 * x1;
+    x2 = std::clamp(x2, 0.25 * x1, 4.0 * x1);
+    x0 = x1;
+    s0 = std::move(s1);
+    x1 = x2;
+  }
+  throw SolveError(fmt::format(
+      "bridge model: the front end cannot draw {:.3g} of its rating from this supply (it reaches "
+      "{:.3g}); the supply is too weak for the drive's power, or the firing angle too large",
+      p.power, s0.power));
+}
+
+}  // namespace overtone::internal

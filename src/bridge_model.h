@@ -1,0 +1,46 @@
+// src/bridge_model.h — from a drive group and the network at its bus to the group's line-current
+// spectrum (internal). Builds the bridge circuits of bridge.h for each front end: six-pulse
+// diode-capacitor, current-stiff diode and thyristor bridges, single-phase units spread over the
+// three line pairs, and multipulse units behind internal phase-shifting windings.
+#ifndef OVERTONE_INTERNAL_BRIDGE_MODEL_H_
+#define OVERTONE_INTERNAL_BRIDGE_MODEL_H_
+
+#include <string>
+#include <vector>
+
+#include "bridge.h"
+#include "models.h"
+#include "overtone/plant.h"
+
+namespace overtone::internal {
+
+// What the network presents at the group's bus (per unit on kBaseVa and the bus voltage).
+struct BusSupply {
+  double nominal_v = 0.0;
+  double frequency_hz = 60.0;
+  Complex emf;        // Thevenin EMF, study frame: bus V1 + Z_sc I1 of the group itself
+  Complex impedance;  // Thevenin impedance at the fundamental, shunt elements excluded
+};
+
+struct GroupSpectrum {
+  std::vector<Complex> current;  // drawn, pu of the bus base current, orders 0..max_order, study frame
+  Complex power;                 // fundamental S = V1 conj(I1) drawn at the terminal, pu on kBaseVa
+  double dc_voltage_v = 0.0;
+  double peak_current_a = 0.0;
+  double conduction_deg = 0.0;
+  double overlap_deg = 0.0;
+  // One period of a representative unit circuit, in amperes and volts, study frame angles.
+  BridgeWaveform waveform;
+};
+
+// Default DC-link capacitance of one unit: 40 uF per kW at 480 V, scaled by (480 V / V_LL)^2
+// (PLANT-FORMAT.md; common practice, from memory).
+double DefaultDcCapacitance(const Drive& drive, double nominal_v);
+
+// Simulates the group's front end against `supply`. Throws SolveError when the operating point
+// cannot be reached, InputError for a combination the model refuses (e.g. firing angle >= 90).
+GroupSpectrum ComputeGroupSpectrum(const Drive& drive, const BusSupply& supply, int max_order);
+
+}  // namespace overtone::internal
+
+#endif  // OVERTONE_INTERNAL_BRIDGE_MODEL_H_

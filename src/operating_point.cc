@@ -1,0 +1,103 @@
+// src/operating_point.cc — load flow iterated with the bridge model until they agree.
+#include "operating_point.h"
+
+#include <cmath>
+
+#include <fmt/format.h>
+
+#include "overtone/errors.h"
+#include "spectra.h"
+
+namespace overtone::internal {
+namespace {
+
+constexpr int kMaxRounds = 30;
+// Agreement between the power a group draws in the load flow and in its bridge simulation, pu.
+constexpr double kPowerTolerance = 1e-9;
+
+// Constant power drawn at each bus by loads, motors and table-spectrum drive groups.
+std::vector<Complex> FixedPowerDrawn(const Plant& plant, const Network& net) {
+  std::vector<Complex> s(static_cast<std::size_t>(net.bus_count()));
+  for (const Load& l : plant.loads) s[net.BusIndex(l.bus)] += LoadPower(l);
+  for (const Motor& m : plant.motors) s[net.BusIndex(m.bus)] += MotorPower(m);
+  for (const Drive& d : plant.drives) {
+    if (!NeedsBridgeModel(d.front_end)) s[net.BusIndex(d.bus)] += TableDrivePower(d);
+  }
+  return s;
+}
+
+void NoteModelAssumptions(const Drive& d, std::vector<std::string>& warnings) {
+  if (d.front_end == FrontEnd::kSinglePhase) {
+    warnings.push_back(fmt::format(
+        "drive '{}': single-phase units are taken as spread evenly over the three line pairs; "
+        "their triplen currents cancel in the lines of this balanced model but flow in the delta "
+        "windings and appear in the lines wherever the spread is uneven", d.name));
+  }
+  if (d.front_end == FrontEnd::kMultipulse && d.line_reactor.kind == ReactorSpec::Kind::kNone) {
+    warnings.push_back(fmt::format(
+        "drive '{}': no line_reactor given; the internal phase-shifting transformer is taken to "
+        "have 5 % leakage reactance on the drive's rating", d.name));
+  }
+}
+
+}  // namespace
+
+OperatingPoint SolveOperatingPoint(const Plant& plant, const Network& net,
+                                   std::vector<std::string>& warnings) {
+  const int max_order = plant.study.max_order;
+  OperatingPoint op;
+  op.drives.resize(plant.drives.size());
+
+  std::vector<std::size_t> bridges;
+  std::vector<int> bridge_buses;
+  for (std::size_t k = 0; k < plant.drives.size(); ++k) {
+    if (!NeedsBridgeModel(plant.drives[k].front_end)) continue;
+    bridges.push_back(k);
+    bridge_buses.push_back(net.BusIndex(plant.drives[k].bus));
+    NoteModelAssumptions(plant.drives[k], warnings);
+  }
+  const std::vector<Complex> z_sc = ShortCircuitImpedances(net, bridge_buses, SourceSet::kAll);
+
+  // Start from the rated power at a displacement factor of about 0.95 (common practice).
+  std::vector<Complex> bridge_power(bridges.size());
+  for (std::size_t n = 0; n < bridges.size(); ++n) {
+    const Drive& d = plant.drives[bridges[n]];
+    bridge_power[n] = Complex{1.0, 0.33} * (d.count * d.power_w * d.loading / kBaseVa);
+  }
+  const std::vector<Complex> fixed = FixedPowerDrawn(plant, net);
+  for (int round = 1;; ++round) {
+    std::vector<Complex> drawn = fixed;
+    for (std::size_t n = 0; n < bridges.size(); ++n) drawn[bridge_buses[n]] += bridge_power[n];
+    op.flow = SolveLoadFlow(net, drawn);
+    op.bridge_iterations = round;
+    double change = 0.0, scale = 0.0;
+    for (std::size_t n = 0; n < bridges.size(); ++n) {
+      const Drive& d = plant.drives[bridges[n]];
+      const Complex v1 = op.flow.voltage[bridge_buses[n]];
+      const Complex i1 = bridge_power[n] == Complex{} ? Complex{} : std::conj(bridge_power[n] / v1);
+      const BusSupply supply{net.nominal_v(bridge_buses[n]), net.frequency_hz(),
+                             v1 + z_sc[n] * i1, z_sc[n]};
+      GroupSpectrum g = ComputeGroupSpectrum(d, supply, max_order);
+      change = std::max(change, std::abs(g.power - bridge_power[n]));
+      scale = std::max(scale, std::abs(g.power));
+      bridge_power[n] = g.power;
+      op.drives[bridges[n]].current = std::move(g.current);
+      op.drives[bridges[n]].bridge = std::move(g);
+    }
+    if (change <= kPowerTolerance * std::max(1.0, scale)) break;
+    if (round == kMaxRounds) {
+      throw SolveError(fmt::format("the load flow and the bridge model did not agree after {} rounds "
+                                   "(last change {:.3g} kVA)", kMaxRounds, change * kBaseVa / 1e3));
+    }
+  }
+
+  for (std::size_t k = 0; k < plant.drives.size(); ++k) {
+    const Drive& d = plant.drives[k];
+    if (NeedsBridgeModel(d.front_end)) continue;
+    const Complex v1 = op.flow.voltage[net.BusIndex(d.bus)];
+    op.drives[k].current = TableSpectrum(d, std::conj(TableDrivePower(d) / v1), max_order, warnings);
+  }
+  return op;
+}
+
+}  // namespace overtone::internal

@@ -1,0 +1,33 @@
+// src/operating_point.h — the plant's fundamental operating point and each drive group's
+// drawn current at every order (internal). Groups with a built-in bridge front end and the load
+// flow are iterated until the groups' fundamental powers agree (PLANT-FORMAT.md "Conventions").
+#ifndef OVERTONE_INTERNAL_OPERATING_POINT_H_
+#define OVERTONE_INTERNAL_OPERATING_POINT_H_
+
+#include <optional>
+#include <string>
+#include <vector>
+
+#include "bridge_model.h"
+#include "load_flow.h"
+#include "network.h"
+
+namespace overtone::internal {
+
+struct DriveOperatingPoint {
+  std::vector<Complex> current;          // drawn, pu of the bus base current, orders 0..max_order
+  std::optional<GroupSpectrum> bridge;   // details from the bridge model (its current moved out)
+};
+
+struct OperatingPoint {
+  LoadFlowResult flow;
+  std::vector<DriveOperatingPoint> drives;  // in plant order
+  int bridge_iterations = 0;                // load flow / bridge model rounds
+};
+
+OperatingPoint SolveOperatingPoint(const Plant& plant, const Network& network,
+                                   std::vector<std::string>& warnings);
+
+}  // namespace overtone::internal
+
+#endif  // OVERTONE_INTERNAL_OPERATING_POINT_H_

@@ -1,0 +1,535 @@
+// src/scan.cc — frequency scans: driving-point and transfer impedances, peaks, step configurations.
+//
+// Method: at each grid order the positive-sequence harmonic admittance matrix Y(h) is filled in the
+// fixed pattern and factored once; one solve per monitored or drive bus gives that bus's column of
+// Z = Y^-1, i.e. its driving-point impedance and the transfer impedances from it (J. Arrillaga,
+// N. R. Watson, "Power System Harmonics", 2nd ed., section 8.2, frequency scans). Capacitor banks
+// are added to the diagonal per step configuration, so every configuration shares one network.
+#include "scan.h"
+
+#include <algorithm>
+#include <atomic>
+#include <cmath>
+#include <exception>
+#include <limits>
+#include <mutex>
+#include <thread>
+
+#include <fmt/format.h>
+
+#include "models.h"
+#include "network.h"
+#include "overtone/errors.h"
+#include "sparse_lu.h"
+
+namespace overtone {
+
+std::string ToString(Risk risk) {
+  switch (risk) {
+    case Risk::kLow: return "low";
+    case Risk::kMedium: return "medium";
+    case Risk::kHigh: return "high";
+  }
+  return "?";
+}
+
+bool ScanOptions::IsValid(std::string* error) const {
+  const auto fail = [error](std::string text) {
+    if (error) *error = "Invalid scan. " + text;
+    return false;
+  };
+  if (!(from_order > 0.0)) return fail(fmt::format("from = {}. Violated constraint: from > 0", from_order));
+  if (!(to_order > from_order)) {
+    return fail(fmt::format("to = {}. Violated constraint: to > from = {}", to_order, from_order));
+  }
+  if (!(step > 0.0)) return fail(fmt::format("step = {}. Violated constraint: step > 0", step));
+  if ((to_order - from_order) / step >= 1e6) {
+    return fail(fmt::format("step = {}. Violated constraint: (to - from) / step < 1000000", step));
+  }
+  if (!(band > 0.0)) return fail(fmt::format("band = {}. Violated constraint: band > 0", band));
+  if (threads < 0) return fail(fmt::format("threads = {}. Violated constraint: threads >= 0", threads));
+  return true;
+}
+
+bool IsWorse(const ResonancePeak& a, const ResonancePeak& b) {
+  return a.risk != b.risk ? a.risk > b.risk : a.amplification > b.amplification;
+}
+
+const ResonancePeak* BusScan::WorstPeak() const {
+  const ResonancePeak* worst = nullptr;
+  for (const ResonancePeak& p : peaks) {
+    if (!worst || IsWorse(p, *worst)) worst = &p;
+  }
+  return worst;
+}
+
+int ScanResult::WorstConfigurationAt(int bus) const {
+  int worst = -1;
+  for (int c = 0; c < static_cast<int>(configurations.size()); ++c) {
+    const ResonancePeak* p = at(c, bus).WorstPeak();
+    if (p && (worst < 0 || IsWorse(*p, *at(worst, bus).WorstPeak()))) worst = c;
+  }
+  return worst;
+}
+
+int ScanOptions::point_count() const {
+  // `to` belongs to the grid when it lies on it within rounding.
+  return static_cast<int>(std::floor((to_order - from_order) / step + 1e-9)) + 1;
+}
+
+namespace internal {
+namespace {
+
+constexpr double kRefineTolerance = 1e-7;  // orders
+
+Plant WithoutShunts(const Plant& plant, bool keep_filters) {
+  Plant p = plant;
+  p.capacitors.clear();
+  if (!keep_filters) p.filters.clear();
+  return p;
+}
+
+std::vector<std::string> DriveBuses(const Plant& plant) {
+  std::vector<std::string> buses;
+  for (const Drive& d : plant.drives) {
+    if (std::find(buses.begin(), buses.end(), d.bus) == buses.end()) buses.push_back(d.bus);
+  }
+  return buses;
+}
+
+// The networks every worker reads: without banks (added per configuration) and without banks or
+// filters (the reference for amplification). Both are built from private plant copies, which
+// must outlive them: a Network points into its plant.
+class ScanModel {
+ public:
+  struct Bank {
+    int slot = 0;
+    double nominal_v = 0.0;
+  };
+
+  explicit ScanModel(const Plant& plant)
+      : fixed_plant_(WithoutShunts(plant, true)), base_plant_(WithoutShunts(plant, false)),
+        fixed_(fixed_plant_), base_(base_plant_),
+        fixed_analysis_(fixed_.pattern()), base_analysis_(base_.pattern()),
+        banks_(plant.capacitors) {
+    for (const Capacitor& c : banks_) {
+      const int bus = fixed_.BusIndex(c.bus);
+      slots_.push_back({fixed_.pattern().Slot(bus, bus), fixed_.nominal_v(bus)});
+    }
+  }
+
+  const Network& network(bool base) const { return base ? base_ : fixed_; }
+  const SparseAnalysis& analysis(bool base) const { return base ? base_analysis_ : fixed_analysis_; }
+  const std::vector<Capacitor>& banks() const { return banks_; }
+  const std::vector<Bank>& slots() const { return slots_; }
+
+ private:
+  Plant fixed_plant_, base_plant_;
+  Network fixed_, base_;
+  SparseAnalysis fixed_analysis_, base_analysis_;
+  std::vector<Capacitor> banks_;
+  std::vector<Bank> slots_;
+};
+
+// What one sweep of a configuration produces, in pu: curves[m][k] at monitored bus m, and
+// transfers[j][m][k] from drive bus j. Sized once per worker and reused.
+struct SweepBuffers {
+  std::vector<std::vector<Complex>> curves;
+  std::vector<std::vector<std::vector<Complex>>> transfers;
+};
+
+// One worker: its own numeric factorizations and a private copy of the banks whose steps it sets.
+class ScanWorker {
+ public:
+  ScanWorker(const ScanModel& model, const std::vector<double>& orders,
+             const std::vector<int>& monitored, const std::vector<int>& drives)
+      : model_(model), orders_(orders), monitored_(monitored), drives_(drives),
+        lu_(model.analysis(false)), base_lu_(model.analysis(true)),
+        values_(static_cast<std::size_t>(model.network(false).pattern().nnz())),
+        rhs_(static_cast<std::size_t>(model.network(false).bus_count())), banks_(model.banks()) {
+    const std::vector<Complex> curve(orders.size());
+    buffers_.curves.assign(monitored.size(), curve);
+    buffers_.transfers.assign(drives.size(), buffers_.curves);
+  }
+
+  void SetConfiguration(const StepConfiguration& c) {
+    for (std::size_t k = 0; k < banks_.size(); ++k) banks_[k].steps_on = c.steps_on[k];
+  }
+
+  // Fills buffers().curves (and .transfers when asked) over the grid.
+  void Sweep(bool base, bool with_transfers) {
+    for (std::size_t k = 0; k < orders_.size(); ++k) {
+      Factor(orders_[k], base);
+      for (std::size_t m = 0; m < monitored_.size(); ++m) {
+        buffers_.curves[m][k] = Column(monitored_[m], base)[monitored_[m]];
+      }
+      if (!with_transfers) continue;
+      for (std::size_t j = 0; j < drives_.size(); ++j) {
+        const std::vector<Complex>& z = Column(drives_[j], base);
+        for (std::size_t m = 0; m < monitored_.size(); ++m) buffers_.transfers[j][m][k] = z[monitored_[m]];
+      }
+    }
+  }
+
+  const SweepBuffers& buffers() const { return buffers_; }
+
+  // Interior maxima of |Z| of monitored bus m in the last sweep, refined by golden-section search
+  // between the neighbouring grid points (pu; amplification against the base network).
+  std::vector<ResonancePeak> Peaks(std::size_t m) {
+    const std::vector<Complex>& z = buffers_.curves[m];
+    std::vector<ResonancePeak> peaks;
+    for (std::size_t k = 1; k + 1 < z.size(); ++k) {
+      const double here = std::abs(z[k]);
+      if (!(here > std::abs(z[k - 1]) * (1.0 + 1e-9) && here >= std::abs(z[k + 1]))) continue;
+      ResonancePeak p = Refine(orders_[k - 1], orders_[k + 1], monitored_[m]);
+      if (p.impedance_ohm < here) p = {orders_[k], here};
+      p.amplification = p.impedance_ohm / std::abs(DrivingPoint(p.order, monitored_[m], true));
+      peaks.push_back(p);
+    }
+    return peaks;
+  }
+
+ private:
+  void Factor(double h, bool base) {
+    const Network& net = model_.network(base);
+    net.Fill(h, Sequence::kPositive, Shunts::kHarmonic, values_);
+    if (!base) {
+      for (std::size_t k = 0; k < banks_.size(); ++k) {
+        const ScanModel::Bank& b = model_.slots()[k];
+        values_[b.slot] += CapacitorAdmittance(banks_[k], b.nominal_v, h);
+      }
+    }
+    if (!(base ? base_lu_ : lu_).Factor(values_)) {
+      throw SolveError(fmt::format("the network is singular at order {:.4f} of the frequency scan "
+                                   "(a bus without any path, or an undamped resonance)", h));
+    }
+  }
+
+  // Column `bus` of Z = Y^-1 of the matrix factored last.
+  const std::vector<Complex>& Column(int bus, bool base) {
+    std::fill(rhs_.begin(), rhs_.end(), Complex{});
+    rhs_[bus] = 1.0;
+    (base ? base_lu_ : lu_).Solve(rhs_);
+    return rhs_;
+  }
+
+  Complex DrivingPoint(double h, int bus, bool base) {
+    Factor(h, base);
+    return Column(bus, base)[bus];
+  }
+
+  // Golden-section search for the largest |Z| in [lo, hi] (one grid step either side of a
+  // sampled maximum, so the interval holds one peak).
+  ResonancePeak Refine(double lo, double hi, int bus) {
+    const double g = (std::sqrt(5.0) - 1.0) / 2.0;
+    double c = hi - g * (hi - lo), d = lo + g * (hi - lo);
+    double fc = std::abs(DrivingPoint(c, bus, false)), fd = std::abs(DrivingPoint(d, bus, false));
+    while (hi - lo > kRefineTolerance) {
+      if (fc >= fd) {
+        hi = d, d = c, fd = fc;
+        c = hi - g * (hi - lo);
+        fc = std::abs(DrivingPoint(c, bus, false));
+      } else {
+        lo = c, c = d, fc = fd;
+        d = lo + g * (hi - lo);
+        fd = std::abs(DrivingPoint(d, bus, false));
+      }
+    }
+    const double order = 0.5 * (lo + hi);
+    return {order, std::abs(DrivingPoint(order, bus, false))};
+  }
+
+  const ScanModel& model_;
+  const std::vector<double>& orders_;
+  const std::vector<int>& monitored_;
+  const std::vector<int>& drives_;
+  SparseLu<Complex> lu_, base_lu_;
+  std::vector<Complex> values_, rhs_;
+  std::vector<Capacitor> banks_;
+  SweepBuffers buffers_;
+};
+
+std::vector<Phasor> InOhms(const std::vector<Complex>& pu, double ohms_per_pu) {
+  std::vector<Phasor> out(pu.size());
+  for (std::size_t k = 0; k < pu.size(); ++k) out[k] = pu[k] * ohms_per_pu;
+  return out;
+}
+
+}  // namespace
+
+std::string ConfigurationName(const std::vector<Capacitor>& banks, const std::vector<int>& steps_on) {
+  if (banks.empty()) return "no capacitor banks";
+  std::string name;
+  for (std::size_t k = 0; k < banks.size(); ++k) {
+    name += fmt::format("{}{} {}/{}", k ? ", " : "", banks[k].name, steps_on[k], banks[k].steps);
+  }
+  return name;
+}
+
+StepConfiguration PresentConfiguration(const std::vector<Capacitor>& banks) {
+  StepConfiguration c;
+  for (const Capacitor& b : banks) c.steps_on.push_back(b.steps_on);
+  c.name = ConfigurationName(banks, c.steps_on);
+  return c;
+}
+
+std::vector<StepConfiguration> StepConfigurations(const std::vector<Capacitor>& banks,
+                                                  std::string* note) {
+  double total = 1.0;
+  for (const Capacitor& b : banks) total *= b.steps + 1.0;
+  std::vector<std::vector<int>> settings;
+  if (total <= kMaxConfigurations) {
+    std::vector<int> steps(banks.size(), 0);
+    for (;;) {
+      settings.push_back(steps);
+      int k = static_cast<int>(banks.size()) - 1;  // odometer: the last bank switches fastest
+      while (k >= 0 && steps[k] == banks[k].steps) steps[k--] = 0;
+      if (k < 0) break;
+      ++steps[k];
+    }
+  } else {
+    std::vector<int> off(banks.size(), 0), on;
+    for (const Capacitor& b : banks) on.push_back(b.steps);
+    settings = {off, on};
+    for (std::size_t k = 0; k < banks.size(); ++k) {
+      for (int s = 1; s <= banks[k].steps; ++s) {
+        std::vector<int> alone = off;
+        alone[k] = s;
+        settings.push_back(alone);
+      }
+    }
+    settings.push_back(PresentConfiguration(banks).steps_on);
+    if (note) {
+      *note = fmt::format("{:.0f} step configurations exceed {}: scanned all banks off, all fully "
+                          "on, each bank alone at each of its steps, and the present state",
+                          total, kMaxConfigurations);
+    }
+  }
+  std::vector<StepConfiguration> configurations;
+  for (const std::vector<int>& s : settings) {
+    const bool seen = std::any_of(configurations.begin(), configurations.end(),
+                                  [&](const StepConfiguration& c) { return c.steps_on == s; });
+    if (!seen) configurations.push_back({s, ConfigurationName(banks, s)});
+  }
+  return configurations;
+}
+
+std::vector<double> InjectionPercent(const std::vector<DriveResult>& drives) {
+  std::vector<double> percent;
+  for (const DriveResult& d : drives) {
+    const double fundamental = std::abs(d.current_a.at(1));
+    if (fundamental <= 0.0) continue;
+    const std::vector<Phasor>& x = d.current_a.by_order;
+    if (percent.size() < x.size()) percent.resize(x.size(), 0.0);
+    for (std::size_t h = 2; h < x.size(); ++h) {
+      percent[h] = std::max(percent[h], 100.0 * std::abs(x[h]) / fundamental);
+    }
+  }
+  return percent;
+}
+
+void RateRisk(const std::vector<double>& injection_percent, double band, ResonancePeak& peak) {
+  double distance = std::numeric_limits<double>::infinity();
+  peak.near_order = 0;
+  const int lo = std::max(2, static_cast<int>(std::ceil(peak.order - 2.0 * band)));
+  const int hi = static_cast<int>(std::floor(peak.order + 2.0 * band));
+  for (int h = lo; h <= hi && h < static_cast<int>(injection_percent.size()); ++h) {
+    if (injection_percent[h] < kInjectionThresholdPercent) continue;
+    const double d = std::abs(peak.order - h);
+    if (d < distance) distance = d, peak.near_order = h;
+  }
+  const double a = peak.amplification;
+  if (distance <= band && a >= kHighAmplification) {
+    peak.risk = Risk::kHigh;
+  } else if ((distance <= band && a >= kMediumAmplification) ||
+             (distance <= 2.0 * band && a >= kHighAmplification)) {
+    peak.risk = Risk::kMedium;
+  } else {
+    peak.risk = Risk::kLow;
+  }
+}
+
+std::vector<std::string> DefaultMonitoredBuses(const Plant& plant, const std::string& pcc) {
+  std::vector<std::string> buses;
+  for (const Bus& b : plant.buses) {
+    const auto here = [&](const auto& element) { return element.bus == b.name; };
+    if (b.name == pcc || std::any_of(plant.capacitors.begin(), plant.capacitors.end(), here) ||
+        std::any_of(plant.filters.begin(), plant.filters.end(), here)) {
+      buses.push_back(b.name);
+    }
+  }
+  return buses;
+}
+
+ScanResult ScanConfigurations(const Plant& plant, const ScanOptions& options,
+                              const std::vector<std::string>& buses,
+                              const std::vector<StepConfiguration>& configurations,
+                              const std::vector<double>& injection_percent, bool keep_curves) {
+  ScanResult r;
+  r.variant = plant.study.name;
+  r.plant_file = plant.source_file;
+  r.options = options;
+  r.buses = buses;
+  r.drive_buses = keep_curves ? DriveBuses(plant) : std::vector<std::string>{};
+  const int points = options.point_count();
+  for (int k = 0; k < points; ++k) r.orders.push_back(options.from_order + k * options.step);
+  const StepConfiguration present = PresentConfiguration(plant.capacitors);
+  std::vector<int> all_on;
+  for (const Capacitor& c : plant.capacitors) all_on.push_back(c.steps);
+  for (std::size_t c = 0; c < configurations.size(); ++c) {
+    r.configurations.push_back(configurations[c].name);
+    if (configurations[c].steps_on == present.steps_on) r.present_configuration = static_cast<int>(c);
+    if (configurations[c].steps_on == all_on) r.all_on_configuration = static_cast<int>(c);
+  }
+
+  const ScanModel model(plant);
+  const Network& net = model.network(false);
+  std::vector<int> monitored, drives;
+  for (const std::string& b : r.buses) monitored.push_back(net.BusIndex(b));
+  for (const std::string& b : r.drive_buses) drives.push_back(net.BusIndex(b));
+  const auto ohms = [&](int i, int j) { return net.nominal_v(i) * net.nominal_v(j) / kBaseVa; };
+
+  const std::size_t nb = monitored.size(), nc = configurations.size();
+  const double curve_points = static_cast<double>(nc) * nb * points;
+  const bool keep_all = keep_curves && curve_points <= kMaxStoredPoints;
+  if (keep_curves && !keep_all) {
+    r.notes.push_back(fmt::format("curves of {} configurations would hold {:.0f} points: curves are "
+                                  "kept for the present configuration and the worst at each bus "
+                                  "only; the peaks of every configuration are listed", nc, curve_points));
+  }
+  r.scans.resize(nc * nb);
+
+  // One configuration: sweep, peaks, risk; curves (and transfers) copied out when asked.
+  const auto scan_one = [&](ScanWorker& worker, std::size_t c, bool curves, bool transfers) {
+    worker.SetConfiguration(configurations[c]);
+    worker.Sweep(false, transfers);
+    const SweepBuffers& out = worker.buffers();
+    for (std::size_t m = 0; m < nb; ++m) {
+      BusScan& s = r.scans[c * nb + m];
+      s.bus = static_cast<int>(m);
+      s.configuration = static_cast<int>(c);
+      const double scale = ohms(monitored[m], monitored[m]);
+      s.peaks = worker.Peaks(m);
+      s.risk = Risk::kLow;
+      for (ResonancePeak& p : s.peaks) {
+        p.impedance_ohm *= scale;
+        RateRisk(injection_percent, options.band, p);
+        s.risk = std::max(s.risk, p.risk);
+      }
+      if (curves) s.impedance_ohm = InOhms(out.curves[m], scale);
+    }
+    if (!transfers) return;
+    for (std::size_t j = 0; j < drives.size(); ++j) {
+      for (std::size_t m = 0; m < nb; ++m) {
+        if (drives[j] == monitored[m]) continue;
+        r.transfers.push_back({static_cast<int>(j), static_cast<int>(m), static_cast<int>(c),
+                               InOhms(out.transfers[j][m], ohms(monitored[m], drives[j]))});
+      }
+    }
+  };
+
+  // Configurations are handed out one at a time; each is computed by one worker alone, so the
+  // result does not depend on the thread count.
+  int threads = options.threads > 0 ? options.threads
+                                    : static_cast<int>(std::max(1u, std::thread::hardware_concurrency()));
+  threads = std::clamp(threads, 1, std::max(1, static_cast<int>(nc)));
+  std::atomic<std::size_t> next{0};
+  std::exception_ptr failure;
+  std::mutex failure_mutex;
+  const auto work = [&]() {
+    try {
+      ScanWorker worker(model, r.orders, monitored, drives);
+      for (std::size_t c = next++; c < nc; c = next++) scan_one(worker, c, keep_all, false);
+    } catch (...) {
+      std::lock_guard lock(failure_mutex);
+      if (!failure) failure = std::current_exception();
+      next = nc;
+    }
+  };
+  std::vector<std::thread> pool;
+  for (int t = 1; t < threads; ++t) pool.emplace_back(work);
+  work();
+  for (std::thread& t : pool) t.join();
+  if (failure) std::rethrow_exception(failure);
+
+  // The worst configuration: the one holding the worst peak at any monitored bus.
+  const ResonancePeak* worst = nullptr;
+  for (const BusScan& s : r.scans) {
+    for (const ResonancePeak& p : s.peaks) {
+      if (!worst || IsWorse(p, *worst)) worst = &p, r.worst_configuration = s.configuration;
+    }
+  }
+
+  if (keep_curves) {
+    // Transfers for the present and the worst configuration (all of them would dwarf the rest);
+    // without every curve kept, also the curves of each bus's worst configuration.
+    ScanWorker worker(model, r.orders, monitored, drives);
+    std::vector<int> featured = {r.present_configuration};
+    if (r.worst_configuration >= 0 && r.worst_configuration != r.present_configuration) {
+      featured.push_back(r.worst_configuration);
+    }
+    for (int c : featured) scan_one(worker, static_cast<std::size_t>(c), true, !drives.empty());
+    for (std::size_t m = 0; m < nb && !keep_all; ++m) {
+      const int c = r.WorstConfigurationAt(static_cast<int>(m));
+      if (c >= 0 && r.at(c, 0).impedance_ohm.empty()) scan_one(worker, static_cast<std::size_t>(c), true, false);
+    }
+    worker.Sweep(true, false);
+    for (std::size_t m = 0; m < nb; ++m) {
+      r.base_impedance_ohm.push_back(InOhms(worker.buffers().curves[m], ohms(monitored[m], monitored[m])));
+    }
+  }
+  if (std::all_of(injection_percent.begin(), injection_percent.end(),
+                  [](double p) { return p < kInjectionThresholdPercent; })) {
+    r.notes.push_back("no drive group draws 1 % or more at any harmonic order: every peak rates low");
+  }
+  return r;
+}
+
+std::vector<Resonance> ScreenPresentState(const Plant& plant, const StudyResult& study, int threads) {
+  ScanOptions options;
+  options.to_order = plant.study.max_order;
+  options.threads = threads;
+  const std::vector<std::string> buses = DefaultMonitoredBuses(plant, study.pcc.bus);
+  if (buses.empty()) return {};
+  const ScanResult scan = ScanConfigurations(plant, options, buses, {PresentConfiguration(plant.capacitors)},
+                                             InjectionPercent(study.drives), false);
+  std::vector<Resonance> resonances;
+  for (const BusScan& s : scan.scans) {
+    for (const ResonancePeak& p : s.peaks) resonances.push_back({scan.buses[s.bus], scan.configurations[0], p});
+  }
+  return resonances;
+}
+
+}  // namespace internal
+
+ScanResult RunScan(const Plant& plant, const ScanOptions& options, bool keep_curves) {
+  std::string problem;
+  if (!options.IsValid(&problem)) throw InputError(SourceLocation{}, problem);
+  std::vector<Diagnostic> unknown;
+  for (const std::string& b : options.buses) {
+    const bool found = std::any_of(plant.buses.begin(), plant.buses.end(),
+                                   [&](const Bus& x) { return x.name == b; });
+    if (!found) {
+      unknown.push_back({{plant.source_file, 0, 0}, fmt::format("--bus '{}': the plant has no bus of that name", b)});
+    }
+  }
+  if (!unknown.empty()) throw InputError(std::move(unknown));
+
+  // The drive spectra that the risk rule weighs: a study of the same plant, without its own scan.
+  StudyOptions study_options;
+  study_options.threads = options.threads;
+  study_options.scan = false;
+  const StudyResult study = RunStudy(plant, study_options);
+
+  std::string note;
+  const std::vector<internal::StepConfiguration> configurations =
+      internal::StepConfigurations(plant.capacitors, &note);
+  const std::vector<std::string> buses =
+      options.buses.empty() ? internal::DefaultMonitoredBuses(plant, study.pcc.bus) : options.buses;
+  ScanResult r = internal::ScanConfigurations(plant, options, buses, configurations,
+                                              internal::InjectionPercent(study.drives), keep_curves);
+  if (!note.empty()) r.notes.insert(r.notes.begin(), note);
+  return r;
+}
+
+}  // namespace overtone

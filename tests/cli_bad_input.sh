@@ -1,0 +1,51 @@
+#!/usr/bin/env bash
+# tests/cli_bad_input.sh — bad plant files through the CLI: exit 2, located errors, nothing written.
+#
+# Usage: cli_bad_input.sh OVERTONE_BINARY SOURCE_DIR
+# For three files of tests/bad, runs `overtone check FILE` and `overtone study FILE --json OUT`
+# and checks the contract of PLANT-FORMAT.md "Errors": exit status 2, `file:line:col: error:` on
+# stderr (at the place the file's `# expect:` line names), and OUT not created.
+set -u
+if [ $# -ne 2 ]; then
+  echo "usage: $0 OVERTONE_BINARY SOURCE_DIR" >&2
+  exit 2
+fi
+BIN=$1
+SRC=$2
+WORK=$(mktemp -d)
+trap 'rm -rf "$WORK"' EXIT
+failures=0
+
+fail() {
+  echo "FAIL: $*" >&2
+  failures=$((failures + 1))
+}
+
+# expect_input_error NAME PLACE OUT COMMAND...: COMMAND must exit 2, print PLACE: error: on
+# stderr, and leave OUT (if not empty) uncreated.
+expect_input_error() {
+  local name=$1 place=$2 out=$3
+  shift 3
+  local status=0
+  "$@" >"$WORK/stdout" 2>"$WORK/stderr" || status=$?
+  [ "$status" -eq 2 ] || fail "$name: exit status $status, expected 2"
+  grep -Eq '^.+:[0-9]+:[0-9]+: error: ' "$WORK/stderr" ||
+    fail "$name: no 'file:line:col: error:' on stderr"
+  grep -Fq "$place: error: " "$WORK/stderr" || fail "$name: no error at $place on stderr"
+  if [ -n "$out" ] && [ -e "$out" ]; then fail "$name: $out was written"; fi
+}
+
+for case in syntax_error wrong_unit unknown_bus; do
+  file="$SRC/tests/bad/$case.yaml"
+  line_col=$(sed -n '1s/^# expect: \([0-9]*:[0-9]*\) .*/\1/p' "$file")
+  [ -n "$line_col" ] || fail "$case: no '# expect: LINE:COL' line"
+  expect_input_error "check $case" "$file:$line_col" "" "$BIN" check "$file"
+  expect_input_error "study $case" "$file:$line_col" "$WORK/$case.json" \
+    "$BIN" study "$file" --json "$WORK/$case.json"
+done
+
+if [ "$failures" -ne 0 ]; then
+  echo "$failures CLI bad-input check(s) failed" >&2
+  exit 1
+fi
+echo "CLI bad-input checks passed"
