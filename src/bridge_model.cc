@@ -44,12 +44,22 @@ Complex ThroughWinding(Complex unit_current, int h, double shift) {
 
 }  // namespace
 
+const BridgeSolution& BridgeCache::Solve(const BridgeParameters& p, int max_order) {
+  const Key key = {static_cast<double>(p.circuit), p.r_supply, p.x_supply, p.x_reactor, p.x_dc,
+                   p.b_dc, p.firing_deg, p.thyristor ? 1.0 : 0.0, p.power,
+                   static_cast<double>(max_order)};
+  auto it = solutions_.find(key);
+  if (it == solutions_.end()) it = solutions_.emplace(key, SolveBridge(p, max_order)).first;
+  return it->second;
+}
+
 double DefaultDcCapacitance(const Drive& d, double nominal_v) {
   const double ratio = 480.0 / nominal_v;
   return 40e-6 * (d.power_w / 1e3) * ratio * ratio;
 }
 
-GroupSpectrum ComputeGroupSpectrum(const Drive& d, const BusSupply& bus, int max_order) {
+GroupSpectrum ComputeGroupSpectrum(const Drive& d, const BusSupply& bus, int max_order,
+                                   BridgeCache& cache) {
   const double v_emf = std::abs(bus.emf) * bus.nominal_v;  // circuit voltage unit, V line-to-line
   const double group_va = d.count * d.power_w;
   const Complex z_supply_ohm = bus.impedance * BaseOhms(bus.nominal_v);
@@ -122,7 +132,7 @@ GroupSpectrum ComputeGroupSpectrum(const Drive& d, const BusSupply& bus, int max
   const double base_amps = kBaseVa / (std::sqrt(3.0) * bus.nominal_v);
   for (std::size_t n = 0; n < plans.size(); ++n) {
     const CircuitPlan& c = plans[n];
-    const BridgeSolution s = SolveBridge(c.parameters, max_order);
+    const BridgeSolution& s = cache.Solve(c.parameters, max_order);
     const double amps_per_unit = c.rated_va / v_emf;  // circuit current unit in amperes
     for (int h = 1; h <= max_order; ++h) {
       Complex i = s.current[h] * amps_per_unit;

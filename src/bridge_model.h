@@ -5,6 +5,8 @@
 #ifndef OVERTONE_INTERNAL_BRIDGE_MODEL_H_
 #define OVERTONE_INTERNAL_BRIDGE_MODEL_H_
 
+#include <array>
+#include <map>
 #include <string>
 #include <vector>
 
@@ -37,9 +39,22 @@ struct GroupSpectrum {
 // (PLANT-FORMAT.md; common practice, from memory).
 double DefaultDcCapacitance(const Drive& drive, double nominal_v);
 
+// Shares the solutions of identical circuits: a plant's many identical groups on buses with the
+// same supply impedance simulate once. The key is every parameter of the per-unit circuit.
+class BridgeCache {
+ public:
+  const BridgeSolution& Solve(const BridgeParameters& p, int max_order);
+  std::size_t size() const { return solutions_.size(); }
+
+ private:
+  using Key = std::array<double, 10>;
+  std::map<Key, BridgeSolution> solutions_;
+};
+
 // Simulates the group's front end against `supply`. Throws SolveError when the operating point
 // cannot be reached, InputError for a combination the model refuses (e.g. firing angle >= 90).
-GroupSpectrum ComputeGroupSpectrum(const Drive& drive, const BusSupply& supply, int max_order);
+GroupSpectrum ComputeGroupSpectrum(const Drive& drive, const BusSupply& supply, int max_order,
+                                   BridgeCache& cache);
 
 }  // namespace overtone::internal
 

@@ -71,13 +71,14 @@ OperatingPoint SolveOperatingPoint(const Plant& plant, const Network& net,
     op.flow = SolveLoadFlow(net, drawn);
     op.bridge_iterations = round;
     double change = 0.0, scale = 0.0;
+    BridgeCache cache;  // per round: the supplies the groups see change between rounds
     for (std::size_t n = 0; n < bridges.size(); ++n) {
       const Drive& d = plant.drives[bridges[n]];
       const Complex v1 = op.flow.voltage[bridge_buses[n]];
       const Complex i1 = bridge_power[n] == Complex{} ? Complex{} : std::conj(bridge_power[n] / v1);
       const BusSupply supply{net.nominal_v(bridge_buses[n]), net.frequency_hz(),
                              v1 + z_sc[n] * i1, z_sc[n]};
-      GroupSpectrum g = ComputeGroupSpectrum(d, supply, max_order);
+      GroupSpectrum g = ComputeGroupSpectrum(d, supply, max_order, cache);
       change = std::max(change, std::abs(g.power - bridge_power[n]));
       scale = std::max(scale, std::abs(g.power));
       bridge_power[n] = g.power;

@@ -83,7 +83,27 @@ void WriteDutyAndResonances(JsonWriter& j, const StudyResult& r) {
   j.EndArray();
 }
 
+// One `drives` entry. The peak is the simulated one for bridge front ends, else the peak of the
+// waveform rebuilt from the spectrum.
+void WriteDrive(JsonWriter& j, const DriveResult& d) {
+  j.BeginObject().Field("name", d.name).Field("bus", d.bus).Field("count", d.count);
+  j.Field("front_end", ToString(d.front_end));
+  WriteCurrentSummary(j, d.current_a, d.indices);
+  if (d.vdc_v) j.Field("vdc_v", *d.vdc_v);
+  j.Field("ipeak_a", d.peak_current_a.value_or(std::sqrt(2.0) * d.indices.peak));
+  if (d.conduction_deg) j.Field("conduction_deg", *d.conduction_deg);
+  if (d.overlap_deg) j.Field("overlap_deg", *d.overlap_deg);
+  WriteHarmonics(j, d.current_a, true);
+  j.EndObject();
+}
+
 }  // namespace
+
+void WriteDriveJson(const DriveResult& drive, std::ostream& out) {
+  JsonWriter j(out);
+  WriteDrive(j, drive);
+  out << '\n';
+}
 
 void WriteStudyJson(const StudyResult& r, std::ostream& out) {
   JsonWriter j(out);
@@ -113,14 +133,7 @@ void WriteStudyJson(const StudyResult& r, std::ostream& out) {
   j.EndArray();
 
   j.Key("drives").BeginArray();
-  for (const DriveResult& d : r.drives) {
-    j.BeginObject().Field("name", d.name).Field("bus", d.bus).Field("count", d.count);
-    j.Field("front_end", ToString(d.front_end));
-    WriteCurrentSummary(j, d.current_a, d.indices);
-    j.Field("ipeak_a", std::sqrt(2.0) * d.indices.peak);
-    WriteHarmonics(j, d.current_a, true);
-    j.EndObject();
-  }
+  for (const DriveResult& d : r.drives) WriteDrive(j, d);
   j.EndArray();
 
   WritePcc(j, r.pcc);

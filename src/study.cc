@@ -84,16 +84,21 @@ PccResult AssessPcc(const Plant& plant, const Network& net, const internal::Harm
   const int p = net.BusIndex(pcc.bus);
   const int max_order = sol.max_order;
   const double base_a = net.BaseAmps(p);
+  // The branches at the pcc that lead toward a supply without passing it.
+  std::vector<const internal::BranchRef*> utility_side;
+  for (const auto& b : net.branches()) {
+    if ((b.from == p || b.to == p) && ReachesSource(net, b.from == p ? b.to : b.from, p)) {
+      utility_side.push_back(&b);
+    }
+  }
   std::vector<Complex> current(static_cast<std::size_t>(max_order) + 1);
   for (int h = 1; h <= max_order; ++h) {
     const internal::Sequence seq = internal::SequenceOf(h);
     for (const auto& s : net.sources()) {
       if (s.bus == p) current[h] += (SourceEmfAt(net, s, h) - sol.at(h, p)) / net.SourceImpedance(s, h);
     }
-    for (const auto& b : net.branches()) {
-      if (b.from != p && b.to != p) continue;
-      const int other = b.from == p ? b.to : b.from;
-      if (!ReachesSource(net, other, p)) continue;
+    for (const internal::BranchRef* branch : utility_side) {
+      const internal::BranchRef& b = *branch;
       const internal::BranchStamp st = net.Stamp(b, h, seq);
       const Complex vf = sol.at(h, b.from), vt = sol.at(h, b.to);
       current[h] -= b.from == p ? st.yff * vf + st.yft * vt : st.ytf * vf + st.ytt * vt;
@@ -154,6 +159,14 @@ StudyResult RunStudy(const Plant& plant, const StudyOptions& options) {
   StudyResult result;
   result.study = plant.study;
   result.cautions = StandardCautions();
+  if (plant.study.summation != Summation::kVector) {
+    // Per-source summation lands with the limit assessment; say so rather than label vector
+    // results as something else.
+    result.warnings.push_back(fmt::format(
+        "study.summation '{}' is not available in this version; the results use vector summation "
+        "(the network solve itself)", ToString(plant.study.summation)));
+    result.study.summation = Summation::kVector;
+  }
 
   // Fundamental operating point, with each drive group's spectrum.
   const internal::OperatingPoint op = internal::SolveOperatingPoint(plant, net, result.warnings);

@@ -19,6 +19,9 @@ void PrintStudyTables(const StudyResult& result, std::ostream& out);
 // The JSON document of PLANT-FORMAT.md ("overtone study PLANT --json"), streamed.
 void WriteStudyJson(const StudyResult& result, std::ostream& out);
 
+// One `drives` entry of the study JSON alone (`overtone spectrum --json`).
+void WriteDriveJson(const DriveResult& drive, std::ostream& out);
+
 // buses.csv, bus_harmonics.csv, drives.csv and branches.csv in `dir` (created if needed).
 void WriteStudyCsv(const StudyResult& result, const std::string& dir);
 
