@@ -1264,10 +1264,6 @@ class PlantBuilder {
 
   void CheckOrder(MappingReader& row, const HarmonicEntry& entry,
                   const std::vector<HarmonicEntry>& earlier) {
-    if (entry.order > plant_.study.max_order) {
-      row.Error("order", fmt::format("order {} is above the study's max_order {}", entry.order,
-                                     plant_.study.max_order));
-    }
     const auto same = std::ranges::find(earlier, entry.order, &HarmonicEntry::order);
     if (entry.order > 0 && same != earlier.end()) {
       row.Error("order", fmt::format("order {} is listed twice; first at line {}", entry.order,

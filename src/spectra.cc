@@ -30,15 +30,22 @@ std::vector<Complex> TableSpectrum(const Drive& d, Complex i1, int max_order,
   const double theta = std::arg(i1);
   const auto& table = (d.front_end == FrontEnd::kActive && d.harmonics.empty())
                           ? DefaultActiveSpectrum() : d.harmonics;
-  bool dropped_triplen = false;
+  bool dropped_triplen = false, dropped_high = false;
   for (const HarmonicEntry& e : table) {
-    if (e.order < 2 || e.order > max_order) continue;
+    if (e.order > max_order) {
+      dropped_high = true;
+      continue;
+    }
     if (e.order % 3 == 0) {
       dropped_triplen = true;
       continue;
     }
     const double angle = e.angle_deg * std::numbers::pi / 180.0 + e.order * theta;
     current[e.order] += std::polar(std::abs(i1) * e.percent / 100.0, angle);
+  }
+  if (dropped_high) {
+    warnings.push_back(fmt::format("drive '{}': spectrum rows above the study's max_order {} are "
+                                   "ignored", d.name, max_order));
   }
   if (dropped_triplen) {
     warnings.push_back(fmt::format(

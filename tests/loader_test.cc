@@ -600,8 +600,10 @@ TEST_CASE("harmonic tables are checked row by row", "[loader]") {
   CHECK(OnlyError(With(table_start +
                        "     harmonics: [{order: 5, percent: 30}, {order: 5, percent: 9}]}\n")) ==
         "order 5 is listed twice; first at line 11");
-  CHECK(OnlyError(With(table_start + "     harmonics: [{order: 61, percent: 1}]}\n")) ==
-        "order 61 is above the study's max_order 50");
+  // Rows above the study's max_order are kept (a variant may lower max_order); the study
+  // ignores them with a warning. Beyond 200, the highest max_order, is an error.
+  CHECK(OnlyError(With(table_start + "     harmonics: [{order: 250, percent: 1}]}\n")) ==
+        "order must be at most 200; got `250`");
   CHECK(OnlyError(With(table_start + "     harmonics: [{order: 1, percent: 100}]}\n")) ==
         "order must be at least 2; got `1`");
   CHECK(OnlyError(With(table_start + "     harmonics: [{order: 5}]}\n")) ==
