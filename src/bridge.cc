@@ -13,7 +13,6 @@
 
 #include <array>
 #include <cmath>
-#include <cstdlib>
 #include <numbers>
 
 #include <fmt/format.h>
@@ -299,7 +298,6 @@ PeriodicState FindPeriodicState(Simulator& sim, PeriodicState x, int steps_per_s
     const PeriodicState y = segment(x);
     const Circuit r = residual(x, y);
     const double scale = std::max(1.0, y.z.head<kCircuitStates>().lpNorm<Eigen::Infinity>());
-    if (std::getenv("BRIDGE_DEBUG")) fmt::print(stderr, "it {} top {}->{} z {} {} {} {} r {}\n", n, x.topology, y.topology, x.z[0], x.z[1], x.z[2], x.z[3], r.lpNorm<Eigen::Infinity>());
     if (r.lpNorm<Eigen::Infinity>() < 1e-11 * scale) return y;
     if (n < 2) {
       x = y;
@@ -335,7 +333,9 @@ std::vector<Complex> FourierSeries(const std::vector<double>& theta, const std::
   std::vector<Complex> base(theta.size()), power(theta.size(), Complex{1.0, 0.0});
   for (std::size_t n = 0; n < theta.size(); ++n) base[n] = std::polar(1.0, -theta[n]);
   for (int h = 1; h <= max_order; ++h) {
-    const Complex a{0.0, -static_cast<double>(h)};
+    // With a = -j h: 1/a = j/h and 1/a^2 = -1/h^2.
+    const Complex inv_a{0.0, 1.0 / h};
+    const double inv_a2 = -1.0 / (static_cast<double>(h) * h);
     for (std::size_t n = 0; n < theta.size(); ++n) power[n] *= base[n];
     Complex sum;
     for (std::size_t n = 0; n + 1 < theta.size(); ++n) {
@@ -343,7 +343,7 @@ std::vector<Complex> FourierSeries(const std::vector<double>& theta, const std::
       if (width <= 0.0) continue;
       const Complex e0 = power[n], e1 = power[n + 1];
       const double slope = (x[n + 1] - x[n]) / width;
-      sum += x[n] * (e1 - e0) / a + slope * (width * e1 / a - (e1 - e0) / (a * a));
+      sum += x[n] * (e1 - e0) * inv_a + slope * (width * e1 * inv_a - (e1 - e0) * inv_a2);
     }
     out[h] = sum / (std::sqrt(2.0) * kPi);
   }
@@ -352,7 +352,7 @@ std::vector<Complex> FourierSeries(const std::vector<double>& theta, const std::
 
 // One period from a periodic state: spectrum, power, DC voltage and waveform.
 BridgeSolution SampleCycle(const BridgeParameters& p, Simulator& sim, PeriodicState x,
-                           double theta0, int max_order) {
+                           double theta0) {
   const bool single_phase = p.circuit == BridgeCircuit::kSinglePhase;
   const double dt = 2.0 * kPi / kSamplesPerCycle;
   const SwitchingRow emf = single_phase ? SinglePhaseCircuit::Emf() : Sinusoid(kPhasePeak, 0.0);
@@ -366,13 +366,11 @@ BridgeSolution SampleCycle(const BridgeParameters& p, Simulator& sim, PeriodicSt
   int conducting = 0, overlapping = 0;
   double theta = theta0;
   const auto on_switch = [&](double offset, const StateVector& z, int id) {
-    if (std::getenv("BRIDGE_SW")) fmt::print(stderr, "switch at {:.3f} from {} i {} {} {}\n", (theta + offset) * 180 / kPi, id, z[0], z[1], z[2]);
     points.push_back(theta + offset);
     values.push_back(line_current(z, id));
   };
   const auto on_sample = [&](const StateVector& z, int id) {
     theta += dt;
-    if (std::getenv("BRIDGE_SW") && (static_cast<int>(std::lround((theta - theta0) / dt)) % 60 == 0)) fmt::print(stderr, "sample {:.2f} id {} z {} {} {} c {} s {}\n", theta * 180 / kPi, id, z[0], z[1], z[2], z[4], z[5]);
     const Topology& t = sim.TopologyOf(id);
     const double i = line_current(z, id);
     const double di = line_current(t.a * z, id);
@@ -394,8 +392,8 @@ BridgeSolution SampleCycle(const BridgeParameters& p, Simulator& sim, PeriodicSt
     s.peak_current = std::max(s.peak_current, std::abs(i));
   };
   sim.Run(x.z, x.topology, kSamplesPerCycle, on_sample, on_switch);
-  s.current = FourierSeries(points, values, max_order);
-  if (std::getenv("BRIDGE_POINTS")) for (std::size_t n = 0; n < points.size(); ++n) if (std::fmod(points[n]*180/kPi, 60.0) < 1.0 || std::fmod(points[n]*180/kPi, 60.0) > 59.0) fmt::print(stderr, "pt {:.5f} {:.6f}\n", points[n]*180/kPi, values[n]);
+  s.samples_theta = std::move(points);
+  s.samples_current = std::move(values);
   s.power = (single_phase ? 1.0 : 3.0) * power / kSamplesPerCycle;
   s.dc_voltage = dc / kSamplesPerCycle;
   s.conduction_deg = 180.0 * conducting / kSamplesPerCycle;
@@ -404,14 +402,13 @@ BridgeSolution SampleCycle(const BridgeParameters& p, Simulator& sim, PeriodicSt
 }
 
 // Steady state and samples for one value of the free parameter (load conductance or DC current).
-BridgeSolution Evaluate(const BridgeParameters& p, double parameter, PeriodicState& warm,
-                        int max_order) {
+BridgeSolution Evaluate(const BridgeParameters& p, double parameter, PeriodicState& warm) {
   const double dt = 2.0 * kPi / kSamplesPerCycle;
   if (p.circuit == BridgeCircuit::kSinglePhase) {
     SinglePhaseCircuit circuit(p, parameter);
     Simulator sim(circuit, dt);
     warm = FindPeriodicState(sim, warm, kSamplesPerCycle / 2, 0.0, SinglePhaseCircuit::Rotate);
-    return SampleCycle(p, sim, warm, 0.0, max_order);
+    return SampleCycle(p, sim, warm, 0.0);
   }
   SixPulseCircuit circuit(p, parameter);
   Simulator sim(circuit, dt);
@@ -428,31 +425,23 @@ BridgeSolution Evaluate(const BridgeParameters& p, double parameter, PeriodicSta
   }
   SetTheta(warm.z, theta0);
   warm = FindPeriodicState(sim, warm, kSamplesPerCycle / 6, theta0, SixPulseCircuit::Rotate);
-  return SampleCycle(p, sim, warm, theta0, max_order);
+  return SampleCycle(p, sim, warm, theta0);
 }
 
-}  // namespace
-
-BridgeSolution SolveBridge(const BridgeParameters& p, int max_order) {
+// The free parameter that reaches the requested power: the DC load conductance (P ~ G V_dc^2,
+// V_dc ~ 1.35 V) or the DC current (P ~ 1.35 V cos(alpha) I_d), by secant steps.
+BridgeSolution ReachPower(const BridgeParameters& p) {
   const bool stiff = p.circuit == BridgeCircuit::kSixPulseStiff;
-  const double cos_alpha = std::cos(p.firing_deg * kPi / 180.0);
   PeriodicState warm;
-  if (!stiff) {
-    // Open bridge with the DC link charged to the EMF's line-to-line peak.
-    warm.z[kVdc] = std::sqrt(2.0);
-  }
-  // Free parameter: P ~ G V_dc^2 with V_dc ~ 1.35 V (capacitor), P ~ 1.35 V cos(alpha) I_d (stiff).
-  double x0 = stiff ? p.power / (1.35 * cos_alpha) : p.power / (1.35 * 1.35);
-  if (p.power <= 0.0) {
-    return Evaluate(p, stiff ? 0.0 : 1e-9, warm, max_order);
-  }
-  BridgeSolution s0 = Evaluate(p, x0, warm, max_order);
+  if (!stiff) warm.z[kVdc] = std::sqrt(2.0);  // open bridge, DC link at the line-to-line peak
+  if (p.power <= 0.0) return Evaluate(p, stiff ? 0.0 : 1e-9, warm);
+  double x0 = stiff ? p.power / (1.35 * std::cos(p.firing_deg * kPi / 180.0))
+                    : p.power / (1.35 * 1.35);
+  BridgeSolution s0 = Evaluate(p, x0, warm);
   double x1 = x0 * p.power / std::max(s0.power, 1e-12);
   for (int it = 0; it < 40; ++it) {
-    BridgeSolution s1 = Evaluate(p, x1, warm, max_order);
-    if (std::getenv("BRIDGE_DEBUG2")) fmt::print(stderr, "power it {} x {} P {} vdc {}\n", it, x1, s1.power, s1.dc_voltage);
+    BridgeSolution s1 = Evaluate(p, x1, warm);
     if (std::abs(s1.power - p.power) <= 1e-9 + 1e-7 * p.power) return s1;
-    // Secant on (parameter, power); the power rises with either parameter.
     const double slope = (s1.power - s0.power) / (x1 - x0);
     double x2 = slope > 0.0 ? x1 + (p.power - s1.power) / slope : 2.0 * x1;
     x2 = std::clamp(x2, 0.25 * x1, 4.0 * x1);
@@ -464,6 +453,14 @@ BridgeSolution SolveBridge(const BridgeParameters& p, int max_order) {
       "bridge model: the front end cannot draw {:.3g} of its rating from this supply (it reaches "
       "{:.3g}); the supply is too weak for the drive's power, or the firing angle too large",
       p.power, s0.power));
+}
+
+}  // namespace
+
+BridgeSolution SolveBridge(const BridgeParameters& p, int max_order) {
+  BridgeSolution s = ReachPower(p);
+  s.current = FourierSeries(s.samples_theta, s.samples_current, max_order);
+  return s;
 }
 
 }  // namespace overtone::internal

@@ -48,6 +48,10 @@ struct BridgeSolution {
   double overlap_deg = 0.0;      // per commutation, stiff circuits
   double power = 0.0;            // terminal input power reached
   BridgeWaveform waveform;
+  // The line current at the grid points and the switching instants of one period (rad, current
+  // unit): the points of the piecewise-linear interpolant whose Fourier series is `current`.
+  std::vector<double> samples_theta;
+  std::vector<double> samples_current;
 };
 
 // Solves the periodic steady state at the requested power: for capacitor circuits by adjusting

@@ -11,6 +11,7 @@
 #include <atomic>
 #include <cmath>
 #include <exception>
+#include <functional>
 #include <limits>
 #include <mutex>
 #include <thread>
@@ -97,9 +98,10 @@ std::vector<std::string> DriveBuses(const Plant& plant) {
   return buses;
 }
 
-// The networks every worker reads: without banks (added per configuration) and without banks or
-// filters (the reference for amplification). Both are built from private plant copies, which
-// must outlive them: a Network points into its plant.
+// What every worker reads: the networks without banks (added per configuration) and without
+// banks or filters (the reference for amplification), the grid and the buses solved for. The
+// networks are built from private plant copies, which must outlive them (a Network points into
+// its plant).
 class ScanModel {
  public:
   struct Bank {
@@ -107,21 +109,29 @@ class ScanModel {
     double nominal_v = 0.0;
   };
 
-  explicit ScanModel(const Plant& plant)
+  ScanModel(const Plant& plant, const std::vector<std::string>& monitored,
+            const std::vector<std::string>& drives, std::vector<double> orders)
       : fixed_plant_(WithoutShunts(plant, true)), base_plant_(WithoutShunts(plant, false)),
         fixed_(fixed_plant_), base_(base_plant_),
         fixed_analysis_(fixed_.pattern()), base_analysis_(base_.pattern()),
-        banks_(plant.capacitors) {
+        banks_(plant.capacitors), orders_(std::move(orders)) {
     for (const Capacitor& c : banks_) {
       const int bus = fixed_.BusIndex(c.bus);
       slots_.push_back({fixed_.pattern().Slot(bus, bus), fixed_.nominal_v(bus)});
     }
+    for (const std::string& b : monitored) monitored_.push_back(fixed_.BusIndex(b));
+    for (const std::string& b : drives) drives_.push_back(fixed_.BusIndex(b));
   }
 
   const Network& network(bool base) const { return base ? base_ : fixed_; }
   const SparseAnalysis& analysis(bool base) const { return base ? base_analysis_ : fixed_analysis_; }
   const std::vector<Capacitor>& banks() const { return banks_; }
   const std::vector<Bank>& slots() const { return slots_; }
+  const std::vector<double>& orders() const { return orders_; }
+  const std::vector<int>& monitored() const { return monitored_; }
+  const std::vector<int>& drives() const { return drives_; }
+  // Ohms per pu of a transfer impedance from bus j to bus i (i = j: driving point).
+  double Ohms(int i, int j) const { return fixed_.nominal_v(i) * fixed_.nominal_v(j) / kBaseVa; }
 
  private:
   Plant fixed_plant_, base_plant_;
@@ -129,61 +139,63 @@ class ScanModel {
   SparseAnalysis fixed_analysis_, base_analysis_;
   std::vector<Capacitor> banks_;
   std::vector<Bank> slots_;
+  std::vector<double> orders_;
+  std::vector<int> monitored_, drives_;
 };
 
-// What one sweep of a configuration produces, in pu: curves[m][k] at monitored bus m, and
-// transfers[j][m][k] from drive bus j. Sized once per worker and reused.
+// Z in pu over the grid: curves[m][k] at monitored bus m, transfers[j][m][k] from drive bus j
+// (left empty when transfers are not wanted). Filled by several workers, each its own points.
 struct SweepBuffers {
   std::vector<std::vector<Complex>> curves;
   std::vector<std::vector<std::vector<Complex>>> transfers;
+
+  SweepBuffers(const ScanModel& model, bool with_transfers)
+      : curves(model.monitored().size(), std::vector<Complex>(model.orders().size())) {
+    if (with_transfers) transfers.assign(model.drives().size(), curves);
+  }
 };
 
 // One worker: its own numeric factorizations and a private copy of the banks whose steps it sets.
+// Each grid point and each peak is computed from the configuration alone, so results do not
+// depend on which worker computes them.
 class ScanWorker {
  public:
-  ScanWorker(const ScanModel& model, const std::vector<double>& orders,
-             const std::vector<int>& monitored, const std::vector<int>& drives)
-      : model_(model), orders_(orders), monitored_(monitored), drives_(drives),
-        lu_(model.analysis(false)), base_lu_(model.analysis(true)),
+  explicit ScanWorker(const ScanModel& model)
+      : model_(model), lu_(model.analysis(false)), base_lu_(model.analysis(true)),
         values_(static_cast<std::size_t>(model.network(false).pattern().nnz())),
-        rhs_(static_cast<std::size_t>(model.network(false).bus_count())), banks_(model.banks()) {
-    const std::vector<Complex> curve(orders.size());
-    buffers_.curves.assign(monitored.size(), curve);
-    buffers_.transfers.assign(drives.size(), buffers_.curves);
+        rhs_(static_cast<std::size_t>(model.network(false).bus_count())), banks_(model.banks()) {}
+
+  void SetConfiguration(const std::vector<int>& steps_on) {
+    for (std::size_t k = 0; k < banks_.size(); ++k) banks_[k].steps_on = steps_on[k];
   }
 
-  void SetConfiguration(const StepConfiguration& c) {
-    for (std::size_t k = 0; k < banks_.size(); ++k) banks_[k].steps_on = c.steps_on[k];
-  }
-
-  // Fills buffers().curves (and .transfers when asked) over the grid.
-  void Sweep(bool base, bool with_transfers) {
-    for (std::size_t k = 0; k < orders_.size(); ++k) {
-      Factor(orders_[k], base);
-      for (std::size_t m = 0; m < monitored_.size(); ++m) {
-        buffers_.curves[m][k] = Column(monitored_[m], base)[monitored_[m]];
+  // Grid points [first, last) of the configured network (or of the base network) into `out`.
+  void Sweep(std::size_t first, std::size_t last, bool base, SweepBuffers& out) {
+    const std::vector<int>& monitored = model_.monitored();
+    for (std::size_t k = first; k < last; ++k) {
+      Factor(model_.orders()[k], base);
+      for (std::size_t m = 0; m < monitored.size(); ++m) {
+        out.curves[m][k] = Column(monitored[m], base)[monitored[m]];
       }
-      if (!with_transfers) continue;
-      for (std::size_t j = 0; j < drives_.size(); ++j) {
-        const std::vector<Complex>& z = Column(drives_[j], base);
-        for (std::size_t m = 0; m < monitored_.size(); ++m) buffers_.transfers[j][m][k] = z[monitored_[m]];
+      for (std::size_t j = 0; j < out.transfers.size(); ++j) {
+        const std::vector<Complex>& z = Column(model_.drives()[j], base);
+        for (std::size_t m = 0; m < monitored.size(); ++m) out.transfers[j][m][k] = z[monitored[m]];
       }
     }
   }
 
-  const SweepBuffers& buffers() const { return buffers_; }
-
-  // Interior maxima of |Z| of monitored bus m in the last sweep, refined by golden-section search
-  // between the neighbouring grid points (pu; amplification against the base network).
-  std::vector<ResonancePeak> Peaks(std::size_t m) {
-    const std::vector<Complex>& z = buffers_.curves[m];
+  // Interior maxima of |Z| on a swept curve of monitored bus m, refined by golden-section search
+  // between the neighbouring grid points; |Z| in pu, amplification against the base network.
+  std::vector<ResonancePeak> Peaks(const std::vector<Complex>& z, std::size_t m) {
+    const std::vector<double>& orders = model_.orders();
+    const int bus = model_.monitored()[m];
     std::vector<ResonancePeak> peaks;
     for (std::size_t k = 1; k + 1 < z.size(); ++k) {
       const double here = std::abs(z[k]);
       if (!(here > std::abs(z[k - 1]) * (1.0 + 1e-9) && here >= std::abs(z[k + 1]))) continue;
-      ResonancePeak p = Refine(orders_[k - 1], orders_[k + 1], monitored_[m]);
-      if (p.impedance_ohm < here) p = {orders_[k], here};
-      p.amplification = p.impedance_ohm / std::abs(DrivingPoint(p.order, monitored_[m], true));
+      ResonancePeak p = Refine(orders[k - 1], orders[k + 1], bus);
+      if (p.impedance_ohm < here) p = {orders[k], here};
+      p.amplification = p.impedance_ohm / std::abs(DrivingPoint(p.order, bus, true));
       peaks.push_back(p);
     }
     return peaks;
@@ -191,8 +203,7 @@ class ScanWorker {
 
  private:
   void Factor(double h, bool base) {
-    const Network& net = model_.network(base);
-    net.Fill(h, Sequence::kPositive, Shunts::kHarmonic, values_);
+    model_.network(base).Fill(h, Sequence::kPositive, Shunts::kHarmonic, values_);
     if (!base) {
       for (std::size_t k = 0; k < banks_.size(); ++k) {
         const ScanModel::Bank& b = model_.slots()[k];
@@ -240,14 +251,35 @@ class ScanWorker {
   }
 
   const ScanModel& model_;
-  const std::vector<double>& orders_;
-  const std::vector<int>& monitored_;
-  const std::vector<int>& drives_;
   SparseLu<Complex> lu_, base_lu_;
   std::vector<Complex> values_, rhs_;
   std::vector<Capacitor> banks_;
-  SweepBuffers buffers_;
 };
+
+// Runs body(worker, i) for i = 0..count-1 on up to `threads` threads, each with its own worker;
+// items are handed out one at a time. The first exception stops the rest and is rethrown.
+void ParallelFor(const ScanModel& model, std::size_t count, int threads,
+                 const std::function<void(ScanWorker&, std::size_t)>& body) {
+  threads = std::clamp(threads, 1, static_cast<int>(std::max<std::size_t>(1, count)));
+  std::atomic<std::size_t> next{0};
+  std::exception_ptr failure;
+  std::mutex failure_mutex;
+  const auto work = [&]() {
+    try {
+      ScanWorker worker(model);
+      for (std::size_t i = next++; i < count; i = next++) body(worker, i);
+    } catch (...) {
+      std::lock_guard lock(failure_mutex);
+      if (!failure) failure = std::current_exception();
+      next = count;
+    }
+  };
+  std::vector<std::thread> pool;
+  for (int t = 1; t < threads; ++t) pool.emplace_back(work);
+  work();
+  for (std::thread& t : pool) t.join();
+  if (failure) std::rethrow_exception(failure);
+}
 
 std::vector<Phasor> InOhms(const std::vector<Complex>& pu, double ohms_per_pu) {
   std::vector<Phasor> out(pu.size());
@@ -382,14 +414,8 @@ ScanResult ScanConfigurations(const Plant& plant, const ScanOptions& options,
     if (configurations[c].steps_on == all_on) r.all_on_configuration = static_cast<int>(c);
   }
 
-  const ScanModel model(plant);
-  const Network& net = model.network(false);
-  std::vector<int> monitored, drives;
-  for (const std::string& b : r.buses) monitored.push_back(net.BusIndex(b));
-  for (const std::string& b : r.drive_buses) drives.push_back(net.BusIndex(b));
-  const auto ohms = [&](int i, int j) { return net.nominal_v(i) * net.nominal_v(j) / kBaseVa; };
-
-  const std::size_t nb = monitored.size(), nc = configurations.size();
+  const ScanModel model(plant, r.buses, r.drive_buses, r.orders);
+  const std::size_t nb = r.buses.size(), nc = configurations.size();
   const double curve_points = static_cast<double>(nc) * nb * points;
   const bool keep_all = keep_curves && curve_points <= kMaxStoredPoints;
   if (keep_curves && !keep_all) {
@@ -397,60 +423,45 @@ ScanResult ScanConfigurations(const Plant& plant, const ScanOptions& options,
                                   "kept for the present configuration and the worst at each bus "
                                   "only; the peaks of every configuration are listed", nc, curve_points));
   }
-  r.scans.resize(nc * nb);
+  const int threads = options.threads > 0
+                          ? options.threads
+                          : static_cast<int>(std::max(1u, std::thread::hardware_concurrency()));
+  constexpr std::size_t kChunk = 32;  // grid points per work item
+  const std::size_t chunks = (r.orders.size() + kChunk - 1) / kChunk;
+  SweepBuffers sweep(model, false), with_transfers(model, true);
 
-  // One configuration: sweep, peaks, risk; curves (and transfers) copied out when asked.
-  const auto scan_one = [&](ScanWorker& worker, std::size_t c, bool curves, bool transfers) {
-    worker.SetConfiguration(configurations[c]);
-    worker.Sweep(false, transfers);
-    const SweepBuffers& out = worker.buffers();
-    for (std::size_t m = 0; m < nb; ++m) {
+  // One configuration: the grid in parallel chunks, then each bus's peaks in parallel; curves
+  // (and transfers) copied out when asked.
+  r.scans.resize(nc * nb);
+  const auto scan = [&](std::size_t c, bool curves, bool transfers) {
+    const std::vector<int>& steps = configurations[c].steps_on;
+    SweepBuffers& out = transfers ? with_transfers : sweep;
+    ParallelFor(model, chunks, threads, [&](ScanWorker& w, std::size_t i) {
+      w.SetConfiguration(steps);
+      w.Sweep(i * kChunk, std::min(r.orders.size(), (i + 1) * kChunk), false, out);
+    });
+    ParallelFor(model, nb, threads, [&](ScanWorker& w, std::size_t m) {
+      w.SetConfiguration(steps);
       BusScan& s = r.scans[c * nb + m];
-      s.bus = static_cast<int>(m);
-      s.configuration = static_cast<int>(c);
-      const double scale = ohms(monitored[m], monitored[m]);
-      s.peaks = worker.Peaks(m);
-      s.risk = Risk::kLow;
+      s = {static_cast<int>(m), static_cast<int>(c), {}, w.Peaks(out.curves[m], m), Risk::kLow};
+      const double scale = model.Ohms(model.monitored()[m], model.monitored()[m]);
       for (ResonancePeak& p : s.peaks) {
         p.impedance_ohm *= scale;
         RateRisk(injection_percent, options.band, p);
         s.risk = std::max(s.risk, p.risk);
       }
       if (curves) s.impedance_ohm = InOhms(out.curves[m], scale);
-    }
-    if (!transfers) return;
-    for (std::size_t j = 0; j < drives.size(); ++j) {
+    });
+    for (std::size_t j = 0; j < out.transfers.size(); ++j) {
       for (std::size_t m = 0; m < nb; ++m) {
-        if (drives[j] == monitored[m]) continue;
+        const int from = model.drives()[j], to = model.monitored()[m];
+        if (from == to) continue;
         r.transfers.push_back({static_cast<int>(j), static_cast<int>(m), static_cast<int>(c),
-                               InOhms(out.transfers[j][m], ohms(monitored[m], drives[j]))});
+                               InOhms(out.transfers[j][m], model.Ohms(to, from))});
       }
     }
   };
-
-  // Configurations are handed out one at a time; each is computed by one worker alone, so the
-  // result does not depend on the thread count.
-  int threads = options.threads > 0 ? options.threads
-                                    : static_cast<int>(std::max(1u, std::thread::hardware_concurrency()));
-  threads = std::clamp(threads, 1, std::max(1, static_cast<int>(nc)));
-  std::atomic<std::size_t> next{0};
-  std::exception_ptr failure;
-  std::mutex failure_mutex;
-  const auto work = [&]() {
-    try {
-      ScanWorker worker(model, r.orders, monitored, drives);
-      for (std::size_t c = next++; c < nc; c = next++) scan_one(worker, c, keep_all, false);
-    } catch (...) {
-      std::lock_guard lock(failure_mutex);
-      if (!failure) failure = std::current_exception();
-      next = nc;
-    }
-  };
-  std::vector<std::thread> pool;
-  for (int t = 1; t < threads; ++t) pool.emplace_back(work);
-  work();
-  for (std::thread& t : pool) t.join();
-  if (failure) std::rethrow_exception(failure);
+  for (std::size_t c = 0; c < nc; ++c) scan(c, keep_all, false);
 
   // The worst configuration: the one holding the worst peak at any monitored bus.
   const ResonancePeak* worst = nullptr;
@@ -463,19 +474,21 @@ ScanResult ScanConfigurations(const Plant& plant, const ScanOptions& options,
   if (keep_curves) {
     // Transfers for the present and the worst configuration (all of them would dwarf the rest);
     // without every curve kept, also the curves of each bus's worst configuration.
-    ScanWorker worker(model, r.orders, monitored, drives);
     std::vector<int> featured = {r.present_configuration};
     if (r.worst_configuration >= 0 && r.worst_configuration != r.present_configuration) {
       featured.push_back(r.worst_configuration);
     }
-    for (int c : featured) scan_one(worker, static_cast<std::size_t>(c), true, !drives.empty());
+    for (int c : featured) scan(static_cast<std::size_t>(c), true, !model.drives().empty());
     for (std::size_t m = 0; m < nb && !keep_all; ++m) {
       const int c = r.WorstConfigurationAt(static_cast<int>(m));
-      if (c >= 0 && r.at(c, 0).impedance_ohm.empty()) scan_one(worker, static_cast<std::size_t>(c), true, false);
+      if (c >= 0 && r.at(c, 0).impedance_ohm.empty()) scan(static_cast<std::size_t>(c), true, false);
     }
-    worker.Sweep(true, false);
+    ParallelFor(model, chunks, threads, [&](ScanWorker& w, std::size_t i) {
+      w.Sweep(i * kChunk, std::min(r.orders.size(), (i + 1) * kChunk), true, sweep);
+    });
     for (std::size_t m = 0; m < nb; ++m) {
-      r.base_impedance_ohm.push_back(InOhms(worker.buffers().curves[m], ohms(monitored[m], monitored[m])));
+      const int bus = model.monitored()[m];
+      r.base_impedance_ohm.push_back(InOhms(sweep.curves[m], model.Ohms(bus, bus)));
     }
   }
   if (std::all_of(injection_percent.begin(), injection_percent.end(),
