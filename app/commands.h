@@ -24,6 +24,7 @@ struct Command {
 Command AddCheckCommand(CLI::App& app);
 Command AddStudyCommand(CLI::App& app);
 Command AddScanCommand(CLI::App& app);
+Command AddSpectrumCommand(CLI::App& app);
 
 }  // namespace overtone::app
 

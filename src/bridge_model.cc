@@ -48,9 +48,15 @@ const BridgeSolution& BridgeCache::Solve(const BridgeParameters& p, int max_orde
   const Key key = {static_cast<double>(p.circuit), p.r_supply, p.x_supply, p.x_reactor, p.x_dc,
                    p.b_dc, p.firing_deg, p.thyristor ? 1.0 : 0.0, p.power,
                    static_cast<double>(max_order)};
-  auto it = solutions_.find(key);
-  if (it == solutions_.end()) it = solutions_.emplace(key, SolveBridge(p, max_order)).first;
-  return it->second;
+  {
+    std::lock_guard lock(mutex_);
+    if (auto it = solutions_.find(key); it != solutions_.end()) return it->second;
+  }
+  // Solved outside the lock; two threads meeting the same new circuit both solve it, with the
+  // same result, and the first one stored is kept.
+  BridgeSolution solution = SolveBridge(p, max_order);
+  std::lock_guard lock(mutex_);
+  return solutions_.emplace(key, std::move(solution)).first->second;
 }
 
 double DefaultDcCapacitance(const Drive& d, double nominal_v) {

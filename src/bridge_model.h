@@ -7,6 +7,7 @@
 
 #include <array>
 #include <map>
+#include <mutex>
 #include <string>
 #include <vector>
 
@@ -41,14 +42,15 @@ double DefaultDcCapacitance(const Drive& drive, double nominal_v);
 
 // Shares the solutions of identical circuits: a plant's many identical groups on buses with the
 // same supply impedance simulate once. The key is every parameter of the per-unit circuit.
+// Safe to share between threads.
 class BridgeCache {
  public:
   const BridgeSolution& Solve(const BridgeParameters& p, int max_order);
-  std::size_t size() const { return solutions_.size(); }
 
  private:
   using Key = std::array<double, 10>;
-  std::map<Key, BridgeSolution> solutions_;
+  std::mutex mutex_;
+  std::map<Key, BridgeSolution> solutions_;  // nodes stay put: references remain valid
 };
 
 // Simulates the group's front end against `supply`. Throws SolveError when the operating point

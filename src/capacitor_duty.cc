@@ -3,9 +3,9 @@
 // Per phase of the wye equivalent, in volts, amperes and ohms. The bank's current at order h is
 // the bus voltage times the bank's admittance (the network's own model, reactor included); the
 // capacitor's voltage is that current times -j X_C / h, so a detuned bank sees the fundamental
-// rise 1/(1 - p) behind its reactor (IEEE Std 1036-2010 clause 6; IEEE Std 18-2012 clause 5.1 for
-// the quantities and their limits; kvar as the sum of V_h I_h over orders, IEEE Std 18-2012
-// clause 5.1 and IEEE Std 1531-2020 clause 6, from memory).
+// rise 1/(1 - p) behind its reactor (IEEE Std 1036-2010; IEEE Std 18-2012 clause 5.1 for the
+// quantities and their limits; kvar as the sum of V_h I_h over orders, IEEE Std 18-2012 and
+// IEEE Std 1531-2020; clause numbers from memory).
 #include "capacitor_duty.h"
 
 #include <algorithm>

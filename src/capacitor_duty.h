@@ -10,7 +10,7 @@
 
 namespace overtone::internal {
 
-// Continuous-operation limits of IEEE Std 18-2012 clause 5.1, percent of rated values.
+// Continuous-operation limits of IEEE Std 18-2012 (clause 5.1, from memory), percent of rated.
 constexpr double kCapVrmsLimit = 110.0;
 constexpr double kCapVpeakLimit = 120.0;
 constexpr double kCapIrmsLimit = 135.0;

@@ -2,14 +2,12 @@
 #include "harmonic_solve.h"
 
 #include <algorithm>
-#include <atomic>
-#include <exception>
-#include <mutex>
-#include <thread>
+#include <memory>
 
 #include <fmt/format.h>
 
 #include "overtone/errors.h"
+#include "parallel.h"
 
 namespace overtone::internal {
 namespace {
@@ -86,28 +84,10 @@ HarmonicSolution SolveHarmonics(const Network& net,
   out.orders.resize(static_cast<std::size_t>(max_order) + 1);
 
   const SparseAnalysis analysis(net.pattern());
-  if (threads <= 0) threads = static_cast<int>(std::max(1u, std::thread::hardware_concurrency()));
-  threads = std::clamp(threads, 1, std::max(1, max_order - 1));
-
-  // Orders are handed out one at a time; which worker solves an order does not change its result.
-  std::atomic<int> next{2};
-  std::exception_ptr failure;
-  std::mutex failure_mutex;
-  auto work = [&]() {
-    try {
-      OrderWorker worker(net, analysis);
-      for (int h = next++; h <= max_order; h = next++) worker.Solve(h, injections[h], out);
-    } catch (...) {
-      std::lock_guard lock(failure_mutex);
-      if (!failure) failure = std::current_exception();
-      next = max_order + 1;
-    }
-  };
-  std::vector<std::thread> pool;
-  for (int t = 1; t < threads; ++t) pool.emplace_back(work);
-  work();
-  for (std::thread& t : pool) t.join();
-  if (failure) std::rethrow_exception(failure);
+  // Orders 2..max_order; which worker solves an order does not change its result.
+  ParallelFor(max_order - 1, threads,
+              [&] { return std::make_unique<OrderWorker>(net, analysis); },
+              [&](OrderWorker& worker, int k) { worker.Solve(k + 2, injections[k + 2], out); });
   return out;
 }
 

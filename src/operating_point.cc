@@ -2,10 +2,12 @@
 #include "operating_point.h"
 
 #include <cmath>
+#include <memory>
 
 #include <fmt/format.h>
 
 #include "overtone/errors.h"
+#include "parallel.h"
 #include "spectra.h"
 
 namespace overtone::internal {
@@ -42,7 +44,7 @@ void NoteModelAssumptions(const Drive& d, std::vector<std::string>& warnings) {
 
 }  // namespace
 
-OperatingPoint SolveOperatingPoint(const Plant& plant, const Network& net,
+OperatingPoint SolveOperatingPoint(const Plant& plant, const Network& net, int threads,
                                    std::vector<std::string>& warnings) {
   const int max_order = plant.study.max_order;
   OperatingPoint op;
@@ -70,20 +72,24 @@ OperatingPoint SolveOperatingPoint(const Plant& plant, const Network& net,
     for (std::size_t n = 0; n < bridges.size(); ++n) drawn[bridge_buses[n]] += bridge_power[n];
     op.flow = SolveLoadFlow(net, drawn);
     op.bridge_iterations = round;
-    double change = 0.0, scale = 0.0;
     BridgeCache cache;  // per round: the supplies the groups see change between rounds
+    std::vector<GroupSpectrum> spectra(bridges.size());
+    ParallelFor(static_cast<int>(bridges.size()), threads, [] { return std::make_unique<int>(0); },
+                [&](int&, int n) {
+                  const Complex v1 = op.flow.voltage[bridge_buses[n]];
+                  const Complex i1 = bridge_power[n] == Complex{} ? Complex{}
+                                                                  : std::conj(bridge_power[n] / v1);
+                  const BusSupply supply{net.nominal_v(bridge_buses[n]), net.frequency_hz(),
+                                         v1 + z_sc[n] * i1, z_sc[n]};
+                  spectra[n] = ComputeGroupSpectrum(plant.drives[bridges[n]], supply, max_order, cache);
+                });
+    double change = 0.0, scale = 0.0;
     for (std::size_t n = 0; n < bridges.size(); ++n) {
-      const Drive& d = plant.drives[bridges[n]];
-      const Complex v1 = op.flow.voltage[bridge_buses[n]];
-      const Complex i1 = bridge_power[n] == Complex{} ? Complex{} : std::conj(bridge_power[n] / v1);
-      const BusSupply supply{net.nominal_v(bridge_buses[n]), net.frequency_hz(),
-                             v1 + z_sc[n] * i1, z_sc[n]};
-      GroupSpectrum g = ComputeGroupSpectrum(d, supply, max_order, cache);
-      change = std::max(change, std::abs(g.power - bridge_power[n]));
-      scale = std::max(scale, std::abs(g.power));
-      bridge_power[n] = g.power;
-      op.drives[bridges[n]].current = std::move(g.current);
-      op.drives[bridges[n]].bridge = std::move(g);
+      change = std::max(change, std::abs(spectra[n].power - bridge_power[n]));
+      scale = std::max(scale, std::abs(spectra[n].power));
+      bridge_power[n] = spectra[n].power;
+      op.drives[bridges[n]].current = std::move(spectra[n].current);
+      op.drives[bridges[n]].bridge = std::move(spectra[n]);
     }
     if (change <= kPowerTolerance * std::max(1.0, scale)) break;
     if (round == kMaxRounds) {

@@ -25,7 +25,9 @@ struct OperatingPoint {
   int bridge_iterations = 0;                // load flow / bridge model rounds
 };
 
-OperatingPoint SolveOperatingPoint(const Plant& plant, const Network& network,
+// Bridge groups are simulated on `threads` threads (0 = all cores); the result does not depend
+// on the thread count.
+OperatingPoint SolveOperatingPoint(const Plant& plant, const Network& network, int threads,
                                    std::vector<std::string>& warnings);
 
 }  // namespace overtone::internal

@@ -197,6 +197,7 @@ void WriteScanCsv(const std::vector<ScanResult>& variants, const std::string& di
     out << "variant,bus,configuration,order,impedance_ohm,angle_deg,base_impedance_ohm\n";
     for (const ScanResult& r : variants) {
       for (const BusScan& s : r.scans) {
+        if (s.impedance_ohm.empty()) continue;  // curve not kept
         const std::vector<Phasor>& base = r.base_impedance_ohm[s.bus];
         for (std::size_t k = 0; k < s.impedance_ohm.size(); ++k) {
           fmt::print(out, "{},{},{},{},{},{},{}\n", CsvField(r.variant), CsvField(r.buses[s.bus]),

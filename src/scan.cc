@@ -2,25 +2,23 @@
 //
 // Method: at each grid order the positive-sequence harmonic admittance matrix Y(h) is filled in the
 // fixed pattern and factored once; one solve per monitored or drive bus gives that bus's column of
-// Z = Y^-1, i.e. its driving-point impedance and the transfer impedances from it (J. Arrillaga,
-// N. R. Watson, "Power System Harmonics", 2nd ed., section 8.2, frequency scans). Capacitor banks
-// are added to the diagonal per step configuration, so every configuration shares one network.
+// Z = Y^-1, i.e. its driving-point impedance and the transfer impedances from it (the frequency
+// scan of harmonic penetration studies: J. Arrillaga, N. R. Watson, "Power System Harmonics",
+// 2nd ed.; IEEE Std 519-2014 application notes; from memory). Capacitor banks are added to the
+// diagonal per step configuration, so every configuration shares one network.
 #include "scan.h"
 
 #include <algorithm>
-#include <atomic>
 #include <cmath>
-#include <exception>
-#include <functional>
 #include <limits>
-#include <mutex>
-#include <thread>
+#include <memory>
 
 #include <fmt/format.h>
 
 #include "models.h"
 #include "network.h"
 #include "overtone/errors.h"
+#include "parallel.h"
 #include "sparse_lu.h"
 
 namespace overtone {
@@ -82,6 +80,9 @@ namespace internal {
 namespace {
 
 constexpr double kRefineTolerance = 1e-7;  // orders
+// A refactor whose pivot growth estimate falls this far below the reference's is redone with
+// fresh pivoting (the threshold of harmonic_solve.cc).
+constexpr double kRcondCollapse = 1e-3;
 
 Plant WithoutShunts(const Plant& plant, bool keep_filters) {
   Plant p = plant;
@@ -161,12 +162,15 @@ struct SweepBuffers {
 class ScanWorker {
  public:
   explicit ScanWorker(const ScanModel& model)
-      : model_(model), lu_(model.analysis(false)), base_lu_(model.analysis(true)),
+      : model_(model), fixed_(model.analysis(false)), base_(model.analysis(true)),
         values_(static_cast<std::size_t>(model.network(false).pattern().nnz())),
         rhs_(static_cast<std::size_t>(model.network(false).bus_count())), banks_(model.banks()) {}
 
   void SetConfiguration(const std::vector<int>& steps_on) {
-    for (std::size_t k = 0; k < banks_.size(); ++k) banks_[k].steps_on = steps_on[k];
+    for (std::size_t k = 0; k < banks_.size(); ++k) {
+      if (banks_[k].steps_on != steps_on[k]) fixed_.reference_rcond = -1.0;  // new matrix values
+      banks_[k].steps_on = steps_on[k];
+    }
   }
 
   // Grid points [first, last) of the configured network (or of the base network) into `out`.
@@ -202,25 +206,50 @@ class ScanWorker {
   }
 
  private:
-  void Factor(double h, bool base) {
+  // The numeric factorizations of one network: a reference at the grid's first order whose pivot
+  // sequence every other order reuses, and a fresh one where that refactor is rejected.
+  struct Factorization {
+    explicit Factorization(const SparseAnalysis& analysis) : lu(analysis), fallback(analysis) {}
+    SparseLu<Complex> lu, fallback;
+    double reference_rcond = -1.0;  // < 0: no reference for the present configuration
+    SparseLu<Complex>* last = nullptr;
+  };
+
+  void Fill(double h, bool base) {
     model_.network(base).Fill(h, Sequence::kPositive, Shunts::kHarmonic, values_);
-    if (!base) {
-      for (std::size_t k = 0; k < banks_.size(); ++k) {
-        const ScanModel::Bank& b = model_.slots()[k];
-        values_[b.slot] += CapacitorAdmittance(banks_[k], b.nominal_v, h);
-      }
+    if (base) return;
+    for (std::size_t k = 0; k < banks_.size(); ++k) {
+      const ScanModel::Bank& b = model_.slots()[k];
+      values_[b.slot] += CapacitorAdmittance(banks_[k], b.nominal_v, h);
     }
-    if (!(base ? base_lu_ : lu_).Factor(values_)) {
-      throw SolveError(fmt::format("the network is singular at order {:.4f} of the frequency scan "
-                                   "(a bus without any path, or an undamped resonance)", h));
+  }
+
+  // Factors Y(h): a refactor, which allocates nothing, unless KLU's pivot growth estimate
+  // collapses against the reference's (KLU user guide on klu_refactor; as in harmonic_solve.cc).
+  // The outcome depends on the configuration and h only.
+  void Factor(double h, bool base) {
+    Factorization& f = base ? base_ : fixed_;
+    const auto singular = [](double order) {
+      return SolveError(fmt::format("the network is singular at order {:.4f} of the frequency scan "
+                                    "(a bus without any path, or an undamped resonance)", order));
+    };
+    if (f.reference_rcond < 0.0) {
+      Fill(model_.orders().front(), base);
+      if (!f.lu.Factor(values_)) throw singular(model_.orders().front());
+      f.reference_rcond = f.lu.Rcond();
     }
+    Fill(h, base);
+    f.last = &f.lu;
+    if (f.lu.Refactor(values_) && f.lu.Rcond() >= kRcondCollapse * f.reference_rcond) return;
+    if (!f.fallback.Factor(values_)) throw singular(h);
+    f.last = &f.fallback;
   }
 
   // Column `bus` of Z = Y^-1 of the matrix factored last.
   const std::vector<Complex>& Column(int bus, bool base) {
     std::fill(rhs_.begin(), rhs_.end(), Complex{});
     rhs_[bus] = 1.0;
-    (base ? base_lu_ : lu_).Solve(rhs_);
+    (base ? base_ : fixed_).last->Solve(rhs_);
     return rhs_;
   }
 
@@ -251,35 +280,10 @@ class ScanWorker {
   }
 
   const ScanModel& model_;
-  SparseLu<Complex> lu_, base_lu_;
+  Factorization fixed_, base_;
   std::vector<Complex> values_, rhs_;
   std::vector<Capacitor> banks_;
 };
-
-// Runs body(worker, i) for i = 0..count-1 on up to `threads` threads, each with its own worker;
-// items are handed out one at a time. The first exception stops the rest and is rethrown.
-void ParallelFor(const ScanModel& model, std::size_t count, int threads,
-                 const std::function<void(ScanWorker&, std::size_t)>& body) {
-  threads = std::clamp(threads, 1, static_cast<int>(std::max<std::size_t>(1, count)));
-  std::atomic<std::size_t> next{0};
-  std::exception_ptr failure;
-  std::mutex failure_mutex;
-  const auto work = [&]() {
-    try {
-      ScanWorker worker(model);
-      for (std::size_t i = next++; i < count; i = next++) body(worker, i);
-    } catch (...) {
-      std::lock_guard lock(failure_mutex);
-      if (!failure) failure = std::current_exception();
-      next = count;
-    }
-  };
-  std::vector<std::thread> pool;
-  for (int t = 1; t < threads; ++t) pool.emplace_back(work);
-  work();
-  for (std::thread& t : pool) t.join();
-  if (failure) std::rethrow_exception(failure);
-}
 
 std::vector<Phasor> InOhms(const std::vector<Complex>& pu, double ohms_per_pu) {
   std::vector<Phasor> out(pu.size());
@@ -423,11 +427,10 @@ ScanResult ScanConfigurations(const Plant& plant, const ScanOptions& options,
                                   "kept for the present configuration and the worst at each bus "
                                   "only; the peaks of every configuration are listed", nc, curve_points));
   }
-  const int threads = options.threads > 0
-                          ? options.threads
-                          : static_cast<int>(std::max(1u, std::thread::hardware_concurrency()));
   constexpr std::size_t kChunk = 32;  // grid points per work item
-  const std::size_t chunks = (r.orders.size() + kChunk - 1) / kChunk;
+  const int chunks = static_cast<int>((r.orders.size() + kChunk - 1) / kChunk);
+  const auto make_worker = [&model] { return std::make_unique<ScanWorker>(model); };
+  const auto chunk_end = [&](int i) { return std::min(r.orders.size(), (i + 1) * kChunk); };
   SweepBuffers sweep(model, false), with_transfers(model, true);
 
   // One configuration: the grid in parallel chunks, then each bus's peaks in parallel; curves
@@ -436,11 +439,11 @@ ScanResult ScanConfigurations(const Plant& plant, const ScanOptions& options,
   const auto scan = [&](std::size_t c, bool curves, bool transfers) {
     const std::vector<int>& steps = configurations[c].steps_on;
     SweepBuffers& out = transfers ? with_transfers : sweep;
-    ParallelFor(model, chunks, threads, [&](ScanWorker& w, std::size_t i) {
+    ParallelFor(chunks, options.threads, make_worker, [&](ScanWorker& w, int i) {
       w.SetConfiguration(steps);
-      w.Sweep(i * kChunk, std::min(r.orders.size(), (i + 1) * kChunk), false, out);
+      w.Sweep(i * kChunk, chunk_end(i), false, out);
     });
-    ParallelFor(model, nb, threads, [&](ScanWorker& w, std::size_t m) {
+    ParallelFor(static_cast<int>(nb), options.threads, make_worker, [&](ScanWorker& w, int m) {
       w.SetConfiguration(steps);
       BusScan& s = r.scans[c * nb + m];
       s = {static_cast<int>(m), static_cast<int>(c), {}, w.Peaks(out.curves[m], m), Risk::kLow};
@@ -483,8 +486,8 @@ ScanResult ScanConfigurations(const Plant& plant, const ScanOptions& options,
       const int c = r.WorstConfigurationAt(static_cast<int>(m));
       if (c >= 0 && r.at(c, 0).impedance_ohm.empty()) scan(static_cast<std::size_t>(c), true, false);
     }
-    ParallelFor(model, chunks, threads, [&](ScanWorker& w, std::size_t i) {
-      w.Sweep(i * kChunk, std::min(r.orders.size(), (i + 1) * kChunk), true, sweep);
+    ParallelFor(chunks, options.threads, make_worker, [&](ScanWorker& w, int i) {
+      w.Sweep(i * kChunk, chunk_end(i), true, sweep);
     });
     for (std::size_t m = 0; m < nb; ++m) {
       const int bus = model.monitored()[m];
@@ -516,15 +519,17 @@ std::vector<Resonance> ScreenPresentState(const Plant& plant, const StudyResult&
 }  // namespace internal
 
 ScanResult RunScan(const Plant& plant, const ScanOptions& options, bool keep_curves) {
-  std::string problem;
-  if (!options.IsValid(&problem)) throw InputError(SourceLocation{}, problem);
+  Diagnostic usage;  // a command-line value: no file or line
+  if (!options.IsValid(&usage.message)) throw InputError({usage});
   std::vector<Diagnostic> unknown;
   for (const std::string& b : options.buses) {
     const bool found = std::any_of(plant.buses.begin(), plant.buses.end(),
                                    [&](const Bus& x) { return x.name == b; });
-    if (!found) {
-      unknown.push_back({{plant.source_file, 0, 0}, fmt::format("--bus '{}': the plant has no bus of that name", b)});
-    }
+    if (found) continue;
+    Diagnostic d;  // names the plant file, which has no line for a command-line value
+    d.where.file = plant.source_file;
+    d.message = fmt::format("--bus '{}': the plant has no bus of that name", b);
+    unknown.push_back(std::move(d));
   }
   if (!unknown.empty()) throw InputError(std::move(unknown));
 
@@ -537,8 +542,11 @@ ScanResult RunScan(const Plant& plant, const ScanOptions& options, bool keep_cur
   std::string note;
   const std::vector<internal::StepConfiguration> configurations =
       internal::StepConfigurations(plant.capacitors, &note);
-  const std::vector<std::string> buses =
-      options.buses.empty() ? internal::DefaultMonitoredBuses(plant, study.pcc.bus) : options.buses;
+  std::vector<std::string> buses;  // as asked, each once
+  for (const std::string& b : options.buses) {
+    if (std::find(buses.begin(), buses.end(), b) == buses.end()) buses.push_back(b);
+  }
+  if (buses.empty()) buses = internal::DefaultMonitoredBuses(plant, study.pcc.bus);
   ScanResult r = internal::ScanConfigurations(plant, options, buses, configurations,
                                               internal::InjectionPercent(study.drives), keep_curves);
   if (!note.empty()) r.notes.insert(r.notes.begin(), note);

@@ -14,7 +14,8 @@ namespace overtone::internal {
 // Above this many step configurations only the reduced set is scanned (issue 5).
 constexpr long kMaxConfigurations = 4096;
 // Curves are kept for every configuration only while they hold at most this many points
-// (16 bytes each, about 128 MB); beyond it only the worst and present configurations keep theirs.
+// (16 bytes each, about 128 MB); beyond it only the present configuration and each bus's worst
+// keep theirs.
 constexpr long kMaxStoredPoints = 8'000'000;
 // A drive group "injects" an order when it draws at least this percent of its fundamental there.
 constexpr double kInjectionThresholdPercent = 1.0;

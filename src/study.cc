@@ -169,7 +169,7 @@ StudyResult RunStudy(const Plant& plant, const StudyOptions& options) {
   }
 
   // Fundamental operating point, with each drive group's spectrum.
-  const internal::OperatingPoint op = internal::SolveOperatingPoint(plant, net, result.warnings);
+  const internal::OperatingPoint op = internal::SolveOperatingPoint(plant, net, options.threads, result.warnings);
   const internal::LoadFlowResult& flow = op.flow;
   result.load_flow_iterations = flow.iterations;
 

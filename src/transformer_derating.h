@@ -11,7 +11,7 @@ namespace overtone::internal {
 
 // F_HL = sum_h I_h^2 h^2 / sum_h I_h^2 over orders 1.. (index = order; index 0 unused): the winding
 // eddy-current loss of this current over that of a sinusoid of the same rms (IEEE C57.110-2008
-// clause 4). 1 for a sinusoid; 1 for an all-zero current.
+// clause 4, from memory). 1 for a sinusoid; 1 for an all-zero current.
 double HarmonicLossFactor(const std::vector<Phasor>& current);
 
 // K-factor of UL 1561 with I_h in per unit of the actual rms current: sum_h (I_h/I_rms)^2 h^2,
@@ -20,7 +20,7 @@ double KFactor(const std::vector<Phasor>& current);
 
 // Largest rms current of the given shape, per unit of rated: sqrt(P_LL-R / (1 + F_HL P_EC-R)) with
 // P_LL-R = 1 + P_EC-R, the rated load loss in per unit of the I^2R loss (IEEE C57.110-2008
-// clause 5.2, dry-type method; from memory).
+// dry-type method; clause 5, from memory).
 double DeratedCurrent(double harmonic_loss_factor, double eddy_loss);
 
 // One entry per transformer, from its branch current in a study.

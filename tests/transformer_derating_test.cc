@@ -62,7 +62,6 @@ TEST_CASE("A study derates the transformer feeding a six-pulse group", "[transfo
   const TransformerDerating& t = r.transformers[0];
   CHECK(t.name == "T1");
   CHECK(t.harmonic_loss_factor == Approx(15.59502).epsilon(1e-6));
-  CHECK(t.k_factor == Approx(t.harmonic_loss_factor));
   CHECK(t.derated_percent == Approx(65.5569).epsilon(1e-5));
   // Load: the branch rms current over 1500 kVA / (sqrt 3 x 13.8 kV) = 62.7555 A.
   CHECK(t.load_percent == Approx(100.0 * r.branches[0].indices.rms / 62.75546).epsilon(1e-6));

@@ -23,7 +23,7 @@ struct ScanOptions {
   double step = 0.02;       // grid spacing in orders, > 0; at most 1,000,000 points
   double band = 0.5;        // risk band around injected orders, in orders, > 0
   std::vector<std::string> buses;  // monitored buses; empty = the pcc and every capacitor or filter bus
-  int threads = 0;          // worker threads over step configurations; 0 = all cores
+  int threads = 0;          // worker threads (grid points, then buses); 0 = all cores
 
   bool IsValid(std::string* error) const;
   int point_count() const;
