@@ -1,4 +1,8 @@
-// app/spectrum_command.cc — `overtone spectrum`: one drive group's current spectrum, waveform and chart.
+// app/spectrum_command.cc — `overtone spectrum`: one drive group's current spectrum, waveform and
+// chart.
+#include <fmt/format.h>
+#include <fmt/ostream.h>
+
 #include <algorithm>
 #include <cctype>
 #include <cmath>
@@ -9,9 +13,6 @@
 #include <numbers>
 #include <sstream>
 #include <string_view>
-
-#include <fmt/format.h>
-#include <fmt/ostream.h>
 
 #include "commands.h"
 #include "overtone/load.h"
@@ -82,10 +83,13 @@ std::string Suggestion(const std::string& word, const std::vector<Drive>& drives
 
 std::string Reactor(const ReactorSpec& r) {
   switch (r.kind) {
-    case ReactorSpec::Kind::kNone: return "none";
-    case ReactorSpec::Kind::kFraction: return fmt::format("{:g} %", r.value * 100.0);
+    case ReactorSpec::Kind::kNone:
+      return "none";
+    case ReactorSpec::Kind::kFraction:
+      return fmt::format("{:g} %", r.value * 100.0);
     case ReactorSpec::Kind::kHenry:
-      return r.value < 1e-3 ? fmt::format("{:g} uH", r.value * 1e6) : fmt::format("{:g} mH", r.value * 1e3);
+      return r.value < 1e-3 ? fmt::format("{:g} uH", r.value * 1e6)
+                            : fmt::format("{:g} mH", r.value * 1e3);
   }
   return "";
 }
@@ -97,29 +101,36 @@ bool CurrentStiff(FrontEnd f) { return f == FrontEnd::kDiodeChoke || f == FrontE
 std::string FrontEndText(const Drive& d, double nominal_v) {
   // The format's default DC capacitance (PLANT-FORMAT.md "drives"): 40 uF per kW at 480 V.
   const double ratio = 480.0 / nominal_v;
-  const double c_uf = d.dc_capacitance_f ? *d.dc_capacitance_f * 1e6 : 40.0 * d.power_w / 1e3 * ratio * ratio;
+  const double c_uf =
+      d.dc_capacitance_f ? *d.dc_capacitance_f * 1e6 : 40.0 * d.power_w / 1e3 * ratio * ratio;
   const std::string capacitor = fmt::format("DC capacitor {:.0f} uF per unit{}", c_uf,
                                             d.dc_capacitance_f ? "" : " (format default)");
-  const std::string reactors = fmt::format("line reactor {}, DC choke {}", Reactor(d.line_reactor),
-                                           Reactor(d.dc_choke));
+  const std::string reactors =
+      fmt::format("line reactor {}, DC choke {}", Reactor(d.line_reactor), Reactor(d.dc_choke));
   switch (d.front_end) {
     case FrontEnd::kDiodeCapacitor:
       return fmt::format("six-pulse diode bridge; {}; {}", reactors, capacitor);
     case FrontEnd::kDiodeChoke:
-      return fmt::format("six-pulse diode bridge, current-stiff DC link; line reactor {}", Reactor(d.line_reactor));
+      return fmt::format("six-pulse diode bridge, current-stiff DC link; line reactor {}",
+                         Reactor(d.line_reactor));
     case FrontEnd::kThyristor:
-      return fmt::format("six-pulse thyristor bridge, firing angle {:g} deg, current-stiff DC link; "
-                         "line reactor {}", d.firing_angle_deg, Reactor(d.line_reactor));
+      return fmt::format(
+          "six-pulse thyristor bridge, firing angle {:g} deg, current-stiff DC link; "
+          "line reactor {}",
+          d.firing_angle_deg, Reactor(d.line_reactor));
     case FrontEnd::kSinglePhase:
-      return fmt::format("single-phase diode bridges line to line, spread over the three line pairs; {}; {}",
-                         reactors, capacitor);
+      return fmt::format(
+          "single-phase diode bridges line to line, spread over the three line pairs; {}; {}",
+          reactors, capacitor);
     case FrontEnd::kMultipulse:
-      return fmt::format("{}-pulse: {} six-pulse diode bridges behind phase-shifting windings, "
-                         "imbalance {:g} %; {}; {}", d.pulses, d.pulses / 6, d.imbalance * 100.0,
-                         reactors, capacitor);
+      return fmt::format(
+          "{}-pulse: {} six-pulse diode bridges behind phase-shifting windings, "
+          "imbalance {:g} %; {}; {}",
+          d.pulses, d.pulses / 6, d.imbalance * 100.0, reactors, capacitor);
     case FrontEnd::kActive:
-      return d.harmonics.empty() ? "active front end, built-in default spectrum (common practice)"
-                                 : fmt::format("active front end, spectrum table of {} orders", d.harmonics.size());
+      return d.harmonics.empty()
+                 ? "active front end, built-in default spectrum (common practice)"
+                 : fmt::format("active front end, spectrum table of {} orders", d.harmonics.size());
     case FrontEnd::kMeasured:
       return fmt::format("measured spectrum table of {} orders", d.harmonics.size());
   }
@@ -130,46 +141,61 @@ std::string FrontEndText(const Drive& d, double nominal_v) {
 
 void PrintReport(const Plant& plant, const Drive& d, const StudyResult& r, const DriveResult& g,
                  std::ostream& out) {
-  const auto bus = std::find_if(r.buses.begin(), r.buses.end(), [&](const BusResult& b) { return b.name == d.bus; });
+  const auto bus = std::find_if(r.buses.begin(), r.buses.end(),
+                                [&](const BusResult& b) { return b.name == d.bus; });
   const Phasor v1 = bus->voltage_pu.at(1), i1 = g.current_a.at(1);
   const std::complex<double> s = std::sqrt(3.0) * bus->nominal_v * v1 * std::conj(i1);  // drawn, VA
   const double pf = std::abs(s) > 0.0 ? s.real() / std::abs(s) : 1.0;
-  const double q_sign = std::abs(s.imag()) <= 1e-6 * std::abs(s) ? 0.0 : s.imag();  // round-off is unity
-  const char* sense = q_sign > 0.0 ? " lagging" : q_sign < 0.0 ? " leading" : "";
+  // Q within round-off of zero: a unity displacement factor, neither lagging nor leading.
+  const double q = std::abs(s.imag()) <= 1e-6 * std::abs(s) ? 0.0 : s.imag();
+  const char* sense = q > 0.0 ? " lagging" : q < 0.0 ? " leading" : "";
   const double fundamental = std::abs(i1);
 
-  fmt::print(out, "Drive group {} at bus {}: {} x {:g} kW, {}, loading {:g} %\n", g.name, g.bus, g.count,
-             d.power_w / 1e3, ToString(d.front_end), d.loading * 100.0);
+  fmt::print(out, "Drive group {} at bus {}: {} x {:g} kW, {}, loading {:g} %\n", g.name, g.bus,
+             g.count, d.power_w / 1e3, ToString(d.front_end), d.loading * 100.0);
   fmt::print(out, "Front end: {}\n", FrontEndText(d, bus->nominal_v));
-  fmt::print(out, "Operating point: bus V1 {:.4f} pu ({:.1f} V line to line), P {:.1f} kW, Q {:.1f} kvar, "
-             "displacement PF {:.4f}{}\n", std::abs(v1), std::abs(v1) * bus->nominal_v, s.real() / 1e3,
-             q_sign / 1e3, pf, sense);
-  fmt::print(out, "Study: {} ({:g} Hz, orders to {})\n\n", plant.study.name, plant.study.frequency_hz,
-             plant.study.max_order);
+  fmt::print(
+      out,
+      "Operating point: bus V1 {:.4f} pu ({:.1f} V line to line), P {:.1f} kW, Q {:.1f} kvar, "
+      "displacement PF {:.4f}{}\n",
+      std::abs(v1), std::abs(v1) * bus->nominal_v, s.real() / 1e3, q / 1e3, pf, sense);
+  fmt::print(out, "Study: {} ({:g} Hz, orders to {})\n\n", plant.study.name,
+             plant.study.frequency_hz, plant.study.max_order);
 
-  fmt::print(out, "I1 {:.1f} A   Irms {:.1f} A   THDi {:.2f} %\n", fundamental, g.indices.rms, g.indices.thd_percent);
+  fmt::print(out, "I1 {:.1f} A   Irms {:.1f} A   THDi {:.2f} %\n", fundamental, g.indices.rms,
+             g.indices.thd_percent);
   if (g.vdc_v) {
-    // Multipulse: figures of one internal six-pulse unit; single-phase: of the units on one line pair.
+    // Multipulse: figures of one internal unit; single-phase: of the units on one line pair.
     const bool multipulse = d.front_end == FrontEnd::kMultipulse;
     const std::string unit = multipulse ? " (one internal six-pulse unit)"
-                           : d.front_end == FrontEnd::kSinglePhase ? " (the units on one line pair)" : "";
+                             : d.front_end == FrontEnd::kSinglePhase
+                                 ? " (the units on one line pair)"
+                                 : "";
     fmt::print(out, "DC voltage (mean) {:.1f} V{}\n", *g.vdc_v, multipulse ? unit : "");
-    fmt::print(out, "Peak {} current {:.1f} A{}\n", d.front_end == FrontEnd::kSinglePhase ? "unit" : "line",
+    fmt::print(out, "Peak {} current {:.1f} A{}\n",
+               d.front_end == FrontEnd::kSinglePhase ? "unit" : "line",
                g.peak_current_a.value_or(0.0), unit);
     if (CurrentStiff(d.front_end)) {
-      fmt::print(out, "Overlap angle {:.2f} deg per commutation (conduction {:.2f} deg per half cycle)\n",
-                 g.overlap_deg.value_or(0.0), g.conduction_deg.value_or(0.0));
+      fmt::print(
+          out, "Overlap angle {:.2f} deg per commutation (conduction {:.2f} deg per half cycle)\n",
+          g.overlap_deg.value_or(0.0), g.conduction_deg.value_or(0.0));
     } else {
-      fmt::print(out, "Conduction angle {:.2f} deg per half cycle{}\n", g.conduction_deg.value_or(0.0), unit);
+      fmt::print(out, "Conduction angle {:.2f} deg per half cycle{}\n",
+                 g.conduction_deg.value_or(0.0), unit);
     }
   } else {
-    fmt::print(out, "Peak line current {:.1f} A (rebuilt from the spectrum)\n", std::sqrt(2.0) * g.indices.peak);
-    fmt::print(out, "Table front end: no waveform, DC voltage or conduction data (the built-in bridge model "
-               "is not used)\n");
+    fmt::print(out, "Peak line current {:.1f} A (rebuilt from the spectrum)\n",
+               std::sqrt(2.0) * g.indices.peak);
+    fmt::print(
+        out,
+        "Table front end: no waveform, DC voltage or conduction data (the built-in bridge model "
+        "is not used)\n");
   }
 
-  fmt::print(out, "\nSpectrum (drawn from the bus; angle relative to the group's fundamental current, "
-             "angle_h - h angle_1; orders below {} % left out)\n", kListedPercent);
+  fmt::print(out,
+             "\nSpectrum (drawn from the bus; angle relative to the group's fundamental current, "
+             "angle_h - h angle_1; orders below {} % left out)\n",
+             kListedPercent);
   fmt::print(out, "{:>5}  {:>10}  {:>9}  {:>9}\n", "order", "A", "% of I1", "angle deg");
   std::vector<int> pasted;
   for (int h = 1; h < static_cast<int>(g.current_a.by_order.size()); ++h) {
@@ -177,14 +203,17 @@ void PrintReport(const Plant& plant, const Drive& d, const StudyResult& r, const
     const double percent = fundamental > 0.0 ? 100.0 * amps / fundamental : 0.0;
     if (h > 1 && percent < kListedPercent) continue;
     if (h > 1 && percent >= kPastedPercent) pasted.push_back(h);
-    fmt::print(out, "{:>5}  {:>10.2f}  {:>9.2f}  {:>9.1f}\n", h, amps, percent, h == 1 ? 0.0 : RelativeAngle(g.current_a, h));
+    fmt::print(out, "{:>5}  {:>10.2f}  {:>9.2f}  {:>9.1f}\n", h, amps, percent,
+               h == 1 ? 0.0 : RelativeAngle(g.current_a, h));
   }
 
   fmt::print(out, "\nFor a `measured` drive (orders of at least {} %):\n", kPastedPercent);
-  if (q_sign >= 0.0) {
+  if (q >= 0.0) {
     fmt::print(out, "    displacement_pf: {:.4f}\n", pf);
   } else {  // the format's displacement_pf is lagging (PLANT-FORMAT.md "drives")
-    fmt::print(out, "    # displacement PF {:.4f} leading: displacement_pf takes lagging values only\n", pf);
+    fmt::print(out,
+               "    # displacement PF {:.4f} leading: displacement_pf takes lagging values only\n",
+               pf);
   }
   fmt::print(out, "    harmonics:\n");
   for (int h : pasted) {
@@ -209,8 +238,8 @@ void PrintReport(const Plant& plant, const Drive& d, const StudyResult& r, const
 void WriteWaveformCsv(const DriveWaveform& w, std::ostream& out) {
   out << "theta_deg,line_current_a,voltage_v,dc_voltage_v\n";
   for (std::size_t n = 0; n < w.theta_deg.size(); ++n) {
-    fmt::print(out, "{:.4f},{:.6g},{:.6g},{:.6g}\n", w.theta_deg[n], w.line_current_a[n], w.voltage_v[n],
-               w.dc_voltage_v[n]);
+    fmt::print(out, "{:.4f},{:.6g},{:.6g},{:.6g}\n", w.theta_deg[n], w.line_current_a[n],
+               w.voltage_v[n], w.dc_voltage_v[n]);
   }
 }
 
@@ -218,11 +247,20 @@ std::string Escape(const std::string& s) {
   std::string out;
   for (char c : s) {
     switch (c) {
-      case '&': out += "&amp;"; break;
-      case '<': out += "&lt;"; break;
-      case '>': out += "&gt;"; break;
-      case '"': out += "&quot;"; break;
-      default: out += c;
+      case '&':
+        out += "&amp;";
+        break;
+      case '<':
+        out += "&lt;";
+        break;
+      case '>':
+        out += "&gt;";
+        break;
+      case '"':
+        out += "&quot;";
+        break;
+      default:
+        out += c;
     }
   }
   return out;
@@ -254,7 +292,8 @@ void WriteWaveformSvg(const Drive& d, const DriveResult& g, std::ostream& out) {
     wrapped[n] = std::fmod(w.theta_deg[n], 360.0);
     if (wrapped[n] < 0.0) wrapped[n] += 360.0;
   }
-  const std::size_t first = static_cast<std::size_t>(std::min_element(wrapped.begin(), wrapped.end()) - wrapped.begin());
+  const std::size_t first =
+      static_cast<std::size_t>(std::min_element(wrapped.begin(), wrapped.end()) - wrapped.begin());
   const auto sample = [&](std::size_t k) { return (first + k) % samples; };
   constexpr double t0 = 0.0, t1 = 360.0;
   double i_max = 0.0, v_max = 0.0;
@@ -266,50 +305,70 @@ void WriteWaveformSvg(const Drive& d, const DriveResult& g, std::ostream& out) {
   const auto y_of = [&](double value, double full) {
     return 0.5 * (kTop + kBottom) - value / full * 0.5 * (kBottom - kTop);
   };
-  const std::string current_label = single_phase ? "unit current (one line pair) in A" : "line current (phase a) in A";
-  const std::string voltage_label = single_phase ? "line-to-line voltage in V" : "phase voltage (a to neutral) in V";
+  const std::string current_label =
+      single_phase ? "unit current (one line pair) in A" : "line current (phase a) in A";
+  const std::string voltage_label =
+      single_phase ? "line-to-line voltage in V" : "phase voltage (a to neutral) in V";
 
-  fmt::print(out, "<svg xmlns=\"http://www.w3.org/2000/svg\" width=\"{0}\" height=\"{1}\" viewBox=\"0 0 {0} {1}\" "
-             "font-family=\"Helvetica, Arial, sans-serif\" font-size=\"12\">\n", kWidth, kHeight);
+  fmt::print(out,
+             "<svg xmlns=\"http://www.w3.org/2000/svg\" width=\"{0}\" height=\"{1}\" "
+             "viewBox=\"0 0 {0} {1}\" font-family=\"Helvetica, Arial, sans-serif\" "
+             "font-size=\"12\">\n",
+             kWidth, kHeight);
   fmt::print(out, "<rect width=\"100%\" height=\"100%\" fill=\"#ffffff\"/>\n");
-  fmt::print(out, "<text x=\"{}\" y=\"22\" font-size=\"15\" font-weight=\"bold\">{}: {}, THDi {:.1f} %</text>\n",
+  fmt::print(out,
+             "<text x=\"{}\" y=\"22\" font-size=\"15\" font-weight=\"bold\">"
+             "{}: {}, THDi {:.1f} %</text>\n",
              kLeft, Escape(g.name), Escape(ToString(d.front_end)), g.indices.thd_percent);
   fmt::print(out, "<text x=\"{}\" y=\"40\" fill=\"#444444\">{}</text>\n", kLeft,
-             Escape(fmt::format("bus {}, {} x {:g} kW at {:g} %; one period at the terminal{}", g.bus, g.count,
-                                d.power_w / 1e3, d.loading * 100.0,
-                                d.front_end == FrontEnd::kMultipulse ? ", one internal six-pulse unit" : "")));
+             Escape(fmt::format(
+                 "bus {}, {} x {:g} kW at {:g} %; one period at the terminal{}", g.bus, g.count,
+                 d.power_w / 1e3, d.loading * 100.0,
+                 d.front_end == FrontEnd::kMultipulse ? ", one internal six-pulse unit" : "")));
 
   // Grid: every 30 deg across, quarters of each scale along.
   for (double t = t0; t <= t1; t += 30.0) {
     const double x = x_of(t);
-    fmt::print(out, "<line x1=\"{0:.1f}\" y1=\"{1}\" x2=\"{0:.1f}\" y2=\"{2}\" stroke=\"#dddddd\"/>\n", x, kTop, kBottom);
-    fmt::print(out, "<text x=\"{:.1f}\" y=\"{}\" text-anchor=\"middle\">{:g}</text>\n", x, kBottom + 18, t);
+    fmt::print(out,
+               "<line x1=\"{0:.1f}\" y1=\"{1}\" x2=\"{0:.1f}\" y2=\"{2}\" stroke=\"#dddddd\"/>\n",
+               x, kTop, kBottom);
+    fmt::print(out, "<text x=\"{:.1f}\" y=\"{}\" text-anchor=\"middle\">{:g}</text>\n", x,
+               kBottom + 18, t);
   }
   for (int k = -4; k <= 4; ++k) {
     const double y = y_of(k / 4.0, 1.0);
-    fmt::print(out, "<line x1=\"{}\" y1=\"{:.1f}\" x2=\"{}\" y2=\"{:.1f}\" stroke=\"{}\"/>\n", kLeft, y, kRight, y,
-               k == 0 ? "#999999" : "#dddddd");
-    fmt::print(out, "<text x=\"{}\" y=\"{:.1f}\" text-anchor=\"end\" fill=\"{}\">{:g}</text>\n", kLeft - 6, y + 4,
-               kCurrentColour, i_max * k / 4.0);
-    fmt::print(out, "<text x=\"{}\" y=\"{:.1f}\" fill=\"{}\">{:g}</text>\n", kRight + 6, y + 4, kVoltageColour,
-               v_max * k / 4.0);
+    fmt::print(out, "<line x1=\"{}\" y1=\"{:.1f}\" x2=\"{}\" y2=\"{:.1f}\" stroke=\"{}\"/>\n",
+               kLeft, y, kRight, y, k == 0 ? "#999999" : "#dddddd");
+    fmt::print(out, "<text x=\"{}\" y=\"{:.1f}\" text-anchor=\"end\" fill=\"{}\">{:g}</text>\n",
+               kLeft - 6, y + 4, kCurrentColour, i_max * k / 4.0);
+    fmt::print(out, "<text x=\"{}\" y=\"{:.1f}\" fill=\"{}\">{:g}</text>\n", kRight + 6, y + 4,
+               kVoltageColour, v_max * k / 4.0);
   }
-  fmt::print(out, "<rect x=\"{}\" y=\"{}\" width=\"{}\" height=\"{}\" fill=\"none\" stroke=\"#000000\"/>\n",
-             kLeft, kTop, kRight - kLeft, kBottom - kTop);
-  fmt::print(out, "<text x=\"{}\" y=\"{}\" text-anchor=\"middle\">phase angle in degrees (study frame)</text>\n",
+  fmt::print(
+      out,
+      "<rect x=\"{}\" y=\"{}\" width=\"{}\" height=\"{}\" fill=\"none\" stroke=\"#000000\"/>\n",
+      kLeft, kTop, kRight - kLeft, kBottom - kTop);
+  fmt::print(out,
+             "<text x=\"{}\" y=\"{}\" text-anchor=\"middle\">"
+             "phase angle in degrees (study frame)</text>\n",
              0.5 * (kLeft + kRight), kBottom + 36);
-  fmt::print(out, "<text transform=\"translate(20 {}) rotate(-90)\" text-anchor=\"middle\" fill=\"{}\">{}</text>\n",
+  fmt::print(out,
+             "<text transform=\"translate(20 {}) rotate(-90)\" text-anchor=\"middle\" "
+             "fill=\"{}\">{}</text>\n",
              0.5 * (kTop + kBottom), kCurrentColour, Escape(current_label));
-  fmt::print(out, "<text transform=\"translate({} {}) rotate(90)\" text-anchor=\"middle\" fill=\"{}\">{}</text>\n",
+  fmt::print(out,
+             "<text transform=\"translate({} {}) rotate(90)\" text-anchor=\"middle\" "
+             "fill=\"{}\">{}</text>\n",
              kWidth - 20, 0.5 * (kTop + kBottom), kVoltageColour, Escape(voltage_label));
 
   // Voltage first so that the current pulse draws over it.
   const auto polyline = [&](const std::vector<double>& values, double full, const char* colour,
                             const char* dash, double width) {
-    fmt::print(out, "<polyline fill=\"none\" stroke=\"{}\" stroke-width=\"{}\"{} points=\"", colour, width,
-               *dash ? fmt::format(" stroke-dasharray=\"{}\"", dash) : "");
+    fmt::print(out, "<polyline fill=\"none\" stroke=\"{}\" stroke-width=\"{}\"{} points=\"", colour,
+               width, *dash ? fmt::format(" stroke-dasharray=\"{}\"", dash) : "");
     for (std::size_t k = 0; k < samples; ++k) {
-      fmt::print(out, "{}{:.1f},{:.1f}", k ? " " : "", x_of(wrapped[sample(k)]), y_of(values[sample(k)], full));
+      fmt::print(out, "{}{:.1f},{:.1f}", k ? " " : "", x_of(wrapped[sample(k)]),
+                 y_of(values[sample(k)], full));
     }
     fmt::print(out, "\"/>\n");
   };
@@ -318,17 +377,24 @@ void WriteWaveformSvg(const Drive& d, const DriveResult& g, std::ostream& out) {
 
   // Legend below the axis title, then the cautions in small print.
   const double legend = kBottom + 62;
-  fmt::print(out, "<line x1=\"{0}\" y1=\"{1}\" x2=\"{2}\" y2=\"{1}\" stroke=\"{3}\" stroke-width=\"2.2\"/>\n",
-             kLeft, legend - 4, kLeft + 40, kCurrentColour);
-  fmt::print(out, "<text x=\"{}\" y=\"{}\">{} (solid, left scale); peak {:.1f} A</text>\n", kLeft + 50, legend,
-             Escape(current_label), g.peak_current_a.value_or(0.0));
-  fmt::print(out, "<line x1=\"{0}\" y1=\"{1}\" x2=\"{2}\" y2=\"{1}\" stroke=\"{3}\" stroke-width=\"1.5\" "
-             "stroke-dasharray=\"7 4\"/>\n", kLeft, legend + 14, kLeft + 40, kVoltageColour);
-  fmt::print(out, "<text x=\"{}\" y=\"{}\">{} (dashed, right scale)</text>\n", kLeft + 50, legend + 18,
-             Escape(voltage_label));
-  fmt::print(out, "<text x=\"{}\" y=\"{}\" text-anchor=\"middle\" font-size=\"9\" fill=\"#444444\">Screening "
-             "study; results depend on data quality; verify by measurement; follow local codes, the utility's "
-             "requirements and a licensed engineer's judgment.</text>\n", 0.5 * kWidth, kHeight - 10);
+  fmt::print(
+      out,
+      "<line x1=\"{0}\" y1=\"{1}\" x2=\"{2}\" y2=\"{1}\" stroke=\"{3}\" stroke-width=\"2.2\"/>\n",
+      kLeft, legend - 4, kLeft + 40, kCurrentColour);
+  fmt::print(out, "<text x=\"{}\" y=\"{}\">{} (solid, left scale); peak {:.1f} A</text>\n",
+             kLeft + 50, legend, Escape(current_label), g.peak_current_a.value_or(0.0));
+  fmt::print(
+      out,
+      "<line x1=\"{0}\" y1=\"{1}\" x2=\"{2}\" y2=\"{1}\" stroke=\"{3}\" stroke-width=\"1.5\" "
+      "stroke-dasharray=\"7 4\"/>\n",
+      kLeft, legend + 14, kLeft + 40, kVoltageColour);
+  fmt::print(out, "<text x=\"{}\" y=\"{}\">{} (dashed, right scale)</text>\n", kLeft + 50,
+             legend + 18, Escape(voltage_label));
+  fmt::print(out,
+             "<text x=\"{}\" y=\"{}\" text-anchor=\"middle\" font-size=\"9\" fill=\"#444444\">"
+             "Screening study; results depend on data quality; verify by measurement; follow local "
+             "codes, the utility's requirements and a licensed engineer's judgment.</text>\n",
+             0.5 * kWidth, kHeight - 10);
   fmt::print(out, "</svg>\n");
 }
 
@@ -357,11 +423,19 @@ int Run(const Args& a) {
   if (!HasBridgeModel(drive->front_end) && (!a.waveform.empty() || !a.svg.empty())) {
     return UsageError(fmt::format(
         "drive '{}' has a {} front end (a spectrum table): there is no waveform for {}; --waveform "
-        "and --svg need a built-in bridge front end", a.drive, ToString(drive->front_end),
-        !a.waveform.empty() && !a.svg.empty() ? "--waveform and --svg" : !a.waveform.empty() ? "--waveform" : "--svg"));
+        "and --svg need a built-in bridge front end",
+        a.drive, ToString(drive->front_end),
+        !a.waveform.empty() && !a.svg.empty() ? "--waveform and --svg"
+        : !a.waveform.empty()                 ? "--waveform"
+                                              : "--svg"));
   }
   using Output = std::pair<std::string, std::string>;
-  for (const auto& [option, path] : {Output{"--json", a.json}, Output{"--waveform", a.waveform}, Output{"--svg", a.svg}}) {
+  for (const auto& [option, path] :
+       {Output{"--json", a.json}, Output{"--waveform", a.waveform}, Output{"--svg", a.svg}}) {
+    if (path == "-" && option != "--json") {
+      return UsageError(
+          fmt::format("{} writes a file; '-' (standard output) is for --json", option));
+    }
     if (!path.empty() && path != "-" && !FolderExists(path)) {
       return UsageError(fmt::format("{} {}: the folder does not exist", option, path));
     }
@@ -383,10 +457,15 @@ int Run(const Args& a) {
     write(text);
     return text.str();
   };
-  const std::string json = a.json.empty() ? "" : render([&](std::ostream& o) { WriteDriveJson(*group, o); });
-  const std::string csv = a.waveform.empty() ? "" : render([&](std::ostream& o) { WriteWaveformCsv(group->waveform, o); });
-  const std::string svg = a.svg.empty() ? "" : render([&](std::ostream& o) { WriteWaveformSvg(*drive, *group, o); });
-  for (const auto& [path, text] : {Output{a.json, json}, Output{a.waveform, csv}, Output{a.svg, svg}}) {
+  const std::string json =
+      a.json.empty() ? "" : render([&](std::ostream& o) { WriteDriveJson(*group, o); });
+  const std::string csv =
+      a.waveform.empty() ? ""
+                         : render([&](std::ostream& o) { WriteWaveformCsv(group->waveform, o); });
+  const std::string svg =
+      a.svg.empty() ? "" : render([&](std::ostream& o) { WriteWaveformSvg(*drive, *group, o); });
+  for (const auto& [path, text] :
+       {Output{a.json, json}, Output{a.waveform, csv}, Output{a.svg, svg}}) {
     if (path.empty() || path == "-") continue;
     WriteFileAtomically(path, [&](std::ostream& o) { o << text; });
   }
@@ -403,16 +482,20 @@ int Run(const Args& a) {
 Command AddSpectrumCommand(CLI::App& app) {
   auto args = std::make_shared<Args>();
   CLI::App* cmd = app.add_subcommand(
-      "spectrum", "One drive group's line-current spectrum from its front end at its operating point, "
-                  "with its waveform and a chart");
+      "spectrum",
+      "One drive group's line-current spectrum from its front end at its operating point, "
+      "with its waveform and a chart");
   cmd->add_option("PLANT", args->plant, "plant file (YAML, format 1)")->required();
   cmd->add_option("--drive", args->drive, "the drive group")->type_name("NAME")->required();
-  cmd->add_option("--json", args->json, "write the group's drive entry as JSON to FILE ('-' for standard output)")
+  cmd->add_option("--json", args->json,
+                  "write the group's drive entry as JSON to FILE ('-' for standard output)")
       ->type_name("FILE");
-  cmd->add_option("--waveform", args->waveform,
-                  "write one period (theta_deg, line_current_a, voltage_v, dc_voltage_v) as CSV to FILE")
+  cmd->add_option(
+         "--waveform", args->waveform,
+         "write one period (theta_deg, line_current_a, voltage_v, dc_voltage_v) as CSV to FILE")
       ->type_name("FILE.csv");
-  cmd->add_option("--svg", args->svg, "draw the line-current pulse over the terminal voltage into FILE")
+  cmd->add_option("--svg", args->svg,
+                  "draw the line-current pulse over the terminal voltage into FILE")
       ->type_name("FILE.svg");
   return {cmd, [args]() { return Run(*args); }};
 }

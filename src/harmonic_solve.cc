@@ -12,9 +12,6 @@
 namespace overtone::internal {
 namespace {
 
-// A refactor whose pivot growth estimate falls this far below the reference's is redone with
-// fresh pivoting (KLU user guide: klu_refactor does no pivoting, so check rcond after it).
-constexpr double kRcondCollapse = 1e-3;
 constexpr int kReferenceOrder = 2;
 
 bool HasSource(const std::vector<Injection>& injections) {
@@ -22,52 +19,41 @@ bool HasSource(const std::vector<Injection>& injections) {
                      [](const Injection& i) { return i.current != Complex{}; });
 }
 
-// One worker: a reference factorization, then a refactor per order it is given.
+// One worker: a factorization whose reference is a fixed order, refactored for each order it is
+// given, so a result does not depend on which worker solved it.
 class OrderWorker {
  public:
   OrderWorker(const Network& net, const SparseAnalysis& analysis)
-      : net_(net), lu_(analysis), fallback_(analysis),
-        values_(static_cast<std::size_t>(net.pattern().nnz())),
+      : net_(net), lu_(analysis), values_(static_cast<std::size_t>(net.pattern().nnz())),
         rhs_(static_cast<std::size_t>(net.bus_count())) {}
 
   void Solve(int h, const std::vector<Injection>& injections, HarmonicSolution& out) {
     OrderSummary& summary = out.orders[h];
     summary.order = h;
-    const Sequence seq = SequenceOf(h);
     if (!HasSource(injections)) return;  // V(h) = 0 exactly
-    if (!lu_.factored()) FactorReference();
-    net_.Fill(h, seq, Shunts::kHarmonic, values_);
-    SparseLu<Complex>* lu = &lu_;
-    summary.rcond = lu_.Refactor(values_) ? lu_.Rcond() : 0.0;
-    if (!(summary.rcond >= kRcondCollapse * reference_rcond_)) {
-      summary.full_factor = true;
-      if (!fallback_.Factor(values_)) {
-        throw SolveError(fmt::format("the network is singular at order {} (a bus has no path for "
-                                     "harmonic current, or a resonance has no damping)", h));
-      }
-      summary.rcond = fallback_.Rcond();
-      lu = &fallback_;
+    if (!lu_.has_reference()) {
+      net_.Fill(kReferenceOrder, SequenceOf(kReferenceOrder), Shunts::kHarmonic, values_);
+      if (!lu_.SetReference(values_)) throw Singular(kReferenceOrder);
     }
+    net_.Fill(h, SequenceOf(h), Shunts::kHarmonic, values_);
+    if (!lu_.Factor(values_)) throw Singular(h);
+    summary.rcond = lu_.rcond();
+    summary.full_factor = lu_.fresh();
     std::fill(rhs_.begin(), rhs_.end(), Complex{});
     for (const Injection& i : injections) rhs_[i.bus] += i.current;
-    lu->Solve(rhs_);
+    lu_.Solve(rhs_);
     std::copy(rhs_.begin(), rhs_.end(), out.voltage.begin() + static_cast<std::ptrdiff_t>(h) * out.bus_count);
     summary.solved = true;
   }
 
  private:
-  void FactorReference() {
-    net_.Fill(kReferenceOrder, SequenceOf(kReferenceOrder), Shunts::kHarmonic, values_);
-    if (!lu_.Factor(values_)) {
-      throw SolveError(fmt::format("the network is singular at order {}", kReferenceOrder));
-    }
-    reference_rcond_ = lu_.Rcond();
+  static SolveError Singular(int h) {
+    return SolveError(fmt::format("the network is singular at order {} (a bus has no path for "
+                                  "harmonic current, or a resonance has no damping)", h));
   }
 
   const Network& net_;
-  SparseLu<Complex> lu_;
-  SparseLu<Complex> fallback_;
-  double reference_rcond_ = 0.0;
+  ReferencePivotLu lu_;
   std::vector<Complex> values_;
   std::vector<Complex> rhs_;
 };

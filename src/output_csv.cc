@@ -6,22 +6,14 @@
 #include <fmt/format.h>
 #include <fmt/ostream.h>
 
+#include "output_common.h"
 #include "overtone/report.h"
 
 namespace overtone {
 namespace {
 
-constexpr double kDegPerRad = 180.0 / std::numbers::pi;
-
-double AngleDeg(Phasor x) { return x == Phasor{} ? 0.0 : std::arg(x) * kDegPerRad; }
-
-// RFC 4180 quoting for names that hold a comma, quote or line break.
-std::string Field(const std::string& s) {
-  if (s.find_first_of(",\"\r\n") == std::string::npos) return s;
-  std::string q = "\"";
-  for (char c : s) q += c == '"' ? std::string("\"\"") : std::string(1, c);
-  return q + '"';
-}
+using internal::AngleDeg;
+using internal::CsvField;
 
 void WriteTable(const std::string& dir, const std::string& file,
                 const std::function<void(std::ostream&)>& rows) {
@@ -34,7 +26,7 @@ void WriteStudyCsv(const StudyResult& r, const std::string& dir) {
   WriteTable(dir, "buses.csv", [&](std::ostream& out) {
     out << "bus,kv,v1_pu,v1_angle_deg,thd_v_percent,vrms_pu,vpeak_pu\n";
     for (const BusResult& b : r.buses) {
-      fmt::print(out, "{},{},{},{},{},{},{}\n", Field(b.name), b.nominal_v / 1e3,
+      fmt::print(out, "{},{},{},{},{},{},{}\n", CsvField(b.name), b.nominal_v / 1e3,
                  b.indices.fundamental, AngleDeg(b.voltage_pu.at(1)), b.indices.thd_percent,
                  b.indices.rms, b.indices.peak);
     }
@@ -45,14 +37,14 @@ void WriteStudyCsv(const StudyResult& r, const std::string& dir) {
       for (std::size_t h = 2; h < b.voltage_pu.by_order.size(); ++h) {
         const Phasor v = b.voltage_pu.by_order[h];
         const double percent = b.indices.fundamental > 0 ? 100.0 * std::abs(v) / b.indices.fundamental : 0.0;
-        fmt::print(out, "{},{},{},{}\n", Field(b.name), h, percent, AngleDeg(v));
+        fmt::print(out, "{},{},{},{}\n", CsvField(b.name), h, percent, AngleDeg(v));
       }
     }
   });
   WriteTable(dir, "drives.csv", [&](std::ostream& out) {
     out << "drive,bus,count,front_end,i1_a,i1_angle_deg,thd_i_percent,irms_a,ipeak_a\n";
     for (const DriveResult& d : r.drives) {
-      fmt::print(out, "{},{},{},{},{},{},{},{},{}\n", Field(d.name), Field(d.bus), d.count,
+      fmt::print(out, "{},{},{},{},{},{},{},{},{}\n", CsvField(d.name), CsvField(d.bus), d.count,
                  ToString(d.front_end), d.indices.fundamental, AngleDeg(d.current_a.at(1)),
                  d.indices.thd_percent, d.indices.rms, std::sqrt(2.0) * d.indices.peak);
     }
@@ -60,8 +52,8 @@ void WriteStudyCsv(const StudyResult& r, const std::string& dir) {
   WriteTable(dir, "branches.csv", [&](std::ostream& out) {
     out << "branch,kind,from,to,i1_a,i1_angle_deg,thd_i_percent,irms_a\n";
     for (const BranchResult& b : r.branches) {
-      fmt::print(out, "{},{},{},{},{},{},{},{}\n", Field(b.name), b.kind, Field(b.from),
-                 Field(b.to), b.indices.fundamental, AngleDeg(b.current_a.at(1)),
+      fmt::print(out, "{},{},{},{},{},{},{},{}\n", CsvField(b.name), b.kind, CsvField(b.from),
+                 CsvField(b.to), b.indices.fundamental, AngleDeg(b.current_a.at(1)),
                  b.indices.thd_percent, b.indices.rms);
     }
   });

@@ -11,9 +11,7 @@ namespace overtone {
 namespace {
 
 using internal::JsonWriter;
-constexpr double kDegPerRad = 180.0 / std::numbers::pi;
-
-double AngleDeg(Phasor x) { return x == Phasor{} ? 0.0 : std::arg(x) * kDegPerRad; }
+using internal::AngleDeg;
 double PercentOf(Phasor x, double fundamental, double negligible) {
   return fundamental > negligible ? 100.0 * std::abs(x) / fundamental : 0.0;
 }

@@ -80,9 +80,6 @@ namespace internal {
 namespace {
 
 constexpr double kRefineTolerance = 1e-7;  // orders
-// A refactor whose pivot growth estimate falls this far below the reference's is redone with
-// fresh pivoting (the threshold of harmonic_solve.cc).
-constexpr double kRcondCollapse = 1e-3;
 
 Plant WithoutShunts(const Plant& plant, bool keep_filters) {
   Plant p = plant;
@@ -168,7 +165,7 @@ class ScanWorker {
 
   void SetConfiguration(const std::vector<int>& steps_on) {
     for (std::size_t k = 0; k < banks_.size(); ++k) {
-      if (banks_[k].steps_on != steps_on[k]) fixed_.reference_rcond = -1.0;  // new matrix values
+      if (banks_[k].steps_on != steps_on[k]) fixed_.ClearReference();  // new matrix values
       banks_[k].steps_on = steps_on[k];
     }
   }
@@ -206,15 +203,6 @@ class ScanWorker {
   }
 
  private:
-  // The numeric factorizations of one network: a reference at the grid's first order whose pivot
-  // sequence every other order reuses, and a fresh one where that refactor is rejected.
-  struct Factorization {
-    explicit Factorization(const SparseAnalysis& analysis) : lu(analysis), fallback(analysis) {}
-    SparseLu<Complex> lu, fallback;
-    double reference_rcond = -1.0;  // < 0: no reference for the present configuration
-    SparseLu<Complex>* last = nullptr;
-  };
-
   void Fill(double h, bool base) {
     model_.network(base).Fill(h, Sequence::kPositive, Shunts::kHarmonic, values_);
     if (base) return;
@@ -224,32 +212,27 @@ class ScanWorker {
     }
   }
 
-  // Factors Y(h): a refactor, which allocates nothing, unless KLU's pivot growth estimate
-  // collapses against the reference's (KLU user guide on klu_refactor; as in harmonic_solve.cc).
-  // The outcome depends on the configuration and h only.
+  // Factors Y(h) reusing the pivots of the grid's first order (ReferencePivotLu); the outcome
+  // depends on the configuration and h only.
   void Factor(double h, bool base) {
-    Factorization& f = base ? base_ : fixed_;
+    ReferencePivotLu& lu = base ? base_ : fixed_;
     const auto singular = [](double order) {
       return SolveError(fmt::format("the network is singular at order {:.4f} of the frequency scan "
                                     "(a bus without any path, or an undamped resonance)", order));
     };
-    if (f.reference_rcond < 0.0) {
+    if (!lu.has_reference()) {
       Fill(model_.orders().front(), base);
-      if (!f.lu.Factor(values_)) throw singular(model_.orders().front());
-      f.reference_rcond = f.lu.Rcond();
+      if (!lu.SetReference(values_)) throw singular(model_.orders().front());
     }
     Fill(h, base);
-    f.last = &f.lu;
-    if (f.lu.Refactor(values_) && f.lu.Rcond() >= kRcondCollapse * f.reference_rcond) return;
-    if (!f.fallback.Factor(values_)) throw singular(h);
-    f.last = &f.fallback;
+    if (!lu.Factor(values_)) throw singular(h);
   }
 
   // Column `bus` of Z = Y^-1 of the matrix factored last.
   const std::vector<Complex>& Column(int bus, bool base) {
     std::fill(rhs_.begin(), rhs_.end(), Complex{});
     rhs_[bus] = 1.0;
-    (base ? base_ : fixed_).last->Solve(rhs_);
+    (base ? base_ : fixed_).Solve(rhs_);
     return rhs_;
   }
 
@@ -280,7 +263,7 @@ class ScanWorker {
   }
 
   const ScanModel& model_;
-  Factorization fixed_, base_;
+  ReferencePivotLu fixed_, base_;  // the configured network and the one without shunts
   std::vector<Complex> values_, rhs_;
   std::vector<Capacitor> banks_;
 };

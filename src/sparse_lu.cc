@@ -130,4 +130,20 @@ bool SparseLu<Scalar>::Solve(std::vector<Scalar>& rhs) {
 template class SparseLu<double>;
 template class SparseLu<std::complex<double>>;
 
+bool ReferencePivotLu::SetReference(const std::vector<std::complex<double>>& values) {
+  if (!reference_.Factor(values)) return false;
+  reference_rcond_ = reference_.Rcond();
+  return true;
+}
+
+bool ReferencePivotLu::Factor(const std::vector<std::complex<double>>& values) {
+  last_ = &reference_;
+  rcond_ = reference_.Refactor(values) ? reference_.Rcond() : 0.0;
+  if (rcond_ >= kRcondCollapse * reference_rcond_) return true;
+  last_ = &fallback_;
+  if (!fallback_.Factor(values)) return false;
+  rcond_ = fallback_.Rcond();
+  return true;
+}
+
 }  // namespace overtone::internal

@@ -68,6 +68,37 @@ class SparseLu {
 extern template class SparseLu<double>;
 extern template class SparseLu<std::complex<double>>;
 
+// Complex LU of a family of matrices with one pattern (the orders of a harmonic solve, the points
+// of a scan) that reuses the pivot sequence of a reference member: refactoring allocates nothing.
+// klu_refactor does no pivoting, so its reciprocal condition estimate is checked (KLU user
+// guide); when it collapses below kRcondCollapse times the reference's, the matrix is factored
+// afresh in a second object and the reference stays intact. A member's factors therefore depend
+// on the reference and that member only, never on the order in which members are factored.
+class ReferencePivotLu {
+ public:
+  static constexpr double kRcondCollapse = 1e-3;
+
+  explicit ReferencePivotLu(const SparseAnalysis& analysis) : reference_(analysis), fallback_(analysis) {}
+
+  bool has_reference() const { return reference_rcond_ >= 0.0; }
+  void ClearReference() { reference_rcond_ = -1.0; }
+  // Factors the reference member; false when it is singular.
+  bool SetReference(const std::vector<std::complex<double>>& values);
+  // Factors a member; false when it is singular.
+  bool Factor(const std::vector<std::complex<double>>& values);
+  // Solves in place with the factors of the last member.
+  bool Solve(std::vector<std::complex<double>>& rhs) { return last_->Solve(rhs); }
+  double rcond() const { return rcond_; }       // of the last member
+  bool fresh() const { return last_ == &fallback_; }  // the last member was factored afresh
+
+ private:
+  SparseLu<std::complex<double>> reference_;
+  SparseLu<std::complex<double>> fallback_;
+  SparseLu<std::complex<double>>* last_ = &reference_;
+  double reference_rcond_ = -1.0;
+  double rcond_ = 0.0;
+};
+
 }  // namespace overtone::internal
 
 #endif  // OVERTONE_INTERNAL_SPARSE_LU_H_

@@ -261,15 +261,16 @@ void CheckAgainstNgspice(const std::vector<Case>& cases) {
     CHECK(std::abs(Ratio(s, 7) - Ratio(b, 7)) < 2e-4);
     CHECK(std::abs(Thd(s) / Thd(b) - 1.0) < 5e-4);
     CHECK(std::abs(s.dc_voltage / b.dc_voltage - 1.0) < 2e-4);
-    // Model against ngspice (the reference). The issue asks for the 5th and 7th within 2 points of the fundamental and THDi within 5 %
-    // relative; the agreement allows a tenth of that (largest differences seen: 0.02 points,
-    // 0.04 %), still ten times what remains from ngspice's diodes and steps. (At 5 % the THDi
-    // barely moves when the circuit is perturbed: 1 % for the doubled inductance above.)
+    // Model against ngspice (the reference). The issue asks for the 5th and 7th within 2 points
+    // of the fundamental and THDi within 5 % relative; the agreement allows a tenth of that
+    // (largest differences seen: 0.02 points, 0.04 %), still ten times what remains from
+    // ngspice's diodes and steps. (At 5 % the THDi barely moves when the circuit is perturbed:
+    // 1 % for the doubled inductance above.)
     CHECK(std::abs(Ratio(model, 5) - Ratio(s, 5)) < 0.002);
     CHECK(std::abs(Ratio(model, 7) - Ratio(s, 7)) < 0.002);
     CHECK(Thd(model) == Approx(Thd(s)).epsilon(0.005));
-    // Against ngspice: same load resistor, so the same DC voltage and power but for the diodes' forward drop in
-    // ngspice (0.05 % seen): 0.2 %.
+    // Against ngspice: same load resistor, so the same DC voltage and power but for the diodes'
+    // forward drop in ngspice (0.05 % seen): 0.2 %.
     CHECK(m.dc_voltage == Approx(s.dc_voltage).epsilon(0.002));
     CHECK(m.power == Approx(s.power).epsilon(0.002));
     // Against ngspice: displacement angle of the fundamental (0.01 deg seen): 0.2 deg.

@@ -27,7 +27,8 @@ run() {
   local name=$1 expected=$2 status=0
   shift 2
   "$@" >"$WORK/$name.out" 2>"$WORK/$name.err" || status=$?
-  [ "$status" -eq "$expected" ] || fail "$name: exit status $status, expected $expected ($(head -c 300 "$WORK/$name.err"))"
+  [ "$status" -eq "$expected" ] ||
+    fail "$name: exit status $status, expected $expected ($(head -c 300 "$WORK/$name.err"))"
 }
 
 # 1. A bridge group: table, JSON, one period of CSV, a chart.
@@ -60,7 +61,7 @@ steps = [b[0] - a[0] for a, b in zip(data, data[1:])]
 assert all(abs(s - 0.25) < 1e-3 for s in steps), "theta grid"
 assert any(abs(r[1]) > 1.0 for r in data) and all(r[3] > 0.0 for r in data), "values"
 EOF
-python3 -c 'import sys, xml.etree.ElementTree as E; r = E.parse(sys.argv[1]).getroot(); assert r.tag.endswith("svg")' \
+python3 -c 'import sys, xml.etree.ElementTree as E; assert E.parse(sys.argv[1]).getroot().tag.endswith("svg")' \
   "$WORK/vsd.svg" || fail "bridge: --svg output is not well-formed SVG"
 grep -q 'THDi' "$WORK/vsd.svg" || fail "bridge: the chart title has no THDi"
 
@@ -98,8 +99,10 @@ EOF
 run table 0 "$BIN" spectrum "$PLANT" --drive BENCH-TABLE
 grep -q 'no waveform' "$WORK/table.out" || fail "table: does not say that there is no waveform"
 # BENCH-TABLE's 5th is 34 % at -175 deg in the plant file; the table shows it back unchanged.
-grep -Eq '^ +5 +[0-9.]+ +34\.00 +-175\.0$' "$WORK/table.out" || fail "table: 5th row is not 34.00 % at -175.0 deg"
-run table_svg 2 "$BIN" spectrum "$PLANT" --drive BENCH-TABLE --svg "$WORK/table.svg" --json "$WORK/table.json"
+grep -Eq '^ +5 +[0-9.]+ +34\.00 +-175\.0$' "$WORK/table.out" ||
+  fail "table: 5th row is not 34.00 % at -175.0 deg"
+run table_svg 2 "$BIN" spectrum "$PLANT" --drive BENCH-TABLE --svg "$WORK/table.svg" \
+  --json "$WORK/table.json"
 grep -q 'error: .*--svg' "$WORK/table_svg.err" || fail "table_svg: no clear error naming --svg"
 [ ! -e "$WORK/table.svg" ] && [ ! -e "$WORK/table.json" ] || fail "table_svg: a file was written"
 
