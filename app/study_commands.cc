@@ -26,6 +26,7 @@ Command AddStudyCommand(CLI::App& app) {
     std::string plant, json, csv_dir;
     int threads = 0;
     bool no_scan = false;
+    bool fail_on_violation = false;
   };
   auto args = std::make_shared<Args>();
   CLI::App* cmd = app.add_subcommand(
@@ -39,6 +40,8 @@ Command AddStudyCommand(CLI::App& app) {
   cmd->add_option("--threads", args->threads, "worker threads for the harmonic orders (0 = all cores)")
       ->check(CLI::Range(0, 1024));
   cmd->add_flag("--no-scan", args->no_scan, "leave resonance screening (frequency scan) out");
+  cmd->add_flag("--fail-on-violation", args->fail_on_violation,
+                "exit with status 3 when the limit assessment finds violations (outputs are written)");
   return {cmd, [args]() {
     const Plant plant = LoadPlant(args->plant);
     StudyOptions options;
@@ -53,7 +56,8 @@ Command AddStudyCommand(CLI::App& app) {
     }
     if (!args->csv_dir.empty()) WriteStudyCsv(result, args->csv_dir);
     if (args->json != "-") PrintStudyTables(result, std::cout);
-    return kExitOk;
+    const bool violated = !result.assessment.violations.empty();
+    return args->fail_on_violation && violated ? kExitViolation : kExitOk;
   }};
 }
 

@@ -30,6 +30,7 @@
 #include <vector>
 
 #include <fmt/format.h>
+#include <yaml-cpp/depthguard.h>
 #include <yaml-cpp/yaml.h>
 
 #include "overtone/errors.h"
@@ -213,6 +214,12 @@ bool CheckText(const std::string& file, std::string_view text, Diagnostics* diag
       return false;
     }
     const char c = text[pos];
+    if (static_cast<unsigned char>(c) < 0x20 && c != '\n' && c != '\t' && c != '\r') {
+      diagnostics->Error({file, line, column},
+                         fmt::format("control character 0x{:02X} is not allowed in a plant file",
+                                     static_cast<unsigned char>(c)));
+      return false;
+    }
     pos += length;
     if (c == '\n') {
       ++line;
@@ -233,6 +240,54 @@ bool CheckText(const std::string& file, std::string_view text, Diagnostics* diag
     ++column;
   }
   return ok;
+}
+
+// Deepest `[`/`{` nesting accepted. A plant file needs three levels; the limit keeps the parser's
+// recursion (and the stack) small whatever the input.
+constexpr int kMaxFlowDepth = 64;
+
+// Reports the first `[` or `{` nested deeper than kMaxFlowDepth, outside quotes and comments.
+bool CheckNesting(const std::string& file, std::string_view text, Diagnostics* diagnostics) {
+  int depth = 0;
+  int line = 1;
+  int column = 0;
+  char quote = 0;  // the open quote, 0 outside quotes
+  bool comment = false;
+  char previous = '\n';
+  for (size_t pos = 0; pos < text.size(); ++pos) {
+    const char c = text[pos];
+    if ((static_cast<unsigned char>(c) & 0xC0) != 0x80) ++column;  // UTF-8 lead bytes only
+    if (c == '\n') {
+      ++line;
+      column = 0;
+      comment = false;
+    } else if (comment) {
+    } else if (quote != 0) {
+      if (quote == '"' && c == '\\') {
+        ++pos;  // an escaped character
+        ++column;
+      } else if (c == quote) {
+        quote = 0;
+      }
+    } else if (c == '#' && (previous == ' ' || previous == '\t' || previous == '\n')) {
+      comment = true;
+    } else if ((c == '"' || c == '\'') &&
+               std::string_view(" \t\n[{,:").find(previous) != std::string_view::npos) {
+      quote = c;
+    } else if (c == '[' || c == '{') {
+      if (++depth > kMaxFlowDepth) {
+        diagnostics->Error({file, line, column},
+                           fmt::format("`{}` nests lists and mappings deeper than {} levels; a "
+                                       "plant file needs three",
+                                       c, kMaxFlowDepth));
+        return false;
+      }
+    } else if ((c == ']' || c == '}') && depth > 0) {
+      --depth;
+    }
+    previous = c;
+  }
+  return true;
 }
 
 // ---------------------------------------------------------------------------------------------
@@ -892,9 +947,14 @@ class PlantFileReader {
 
   std::optional<YAML::Node> Parse(const std::string& file, const std::string& text) {
     if (!CheckText(file, text, diagnostics_)) return std::nullopt;
+    if (!CheckNesting(file, text, diagnostics_)) return std::nullopt;
     std::vector<YAML::Node> documents;
     try {
       documents = YAML::LoadAll(text);
+    } catch (const YAML::DeepRecursion& e) {
+      diagnostics_->Error({file, e.mark.line + 1, e.mark.column + 1},
+                          "the YAML nests too deeply here; a plant file needs three levels");
+      return std::nullopt;
     } catch (const YAML::Exception& e) {
       const SourceLocation where = e.mark.is_null()
                                        ? SourceLocation{file, 0, 0}

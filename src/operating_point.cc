@@ -14,8 +14,9 @@ namespace overtone::internal {
 namespace {
 
 constexpr int kMaxRounds = 30;
-// Agreement between the power a group draws in the load flow and in its bridge simulation, pu.
-constexpr double kPowerTolerance = 1e-9;
+// Agreement between the power each group draws in the load flow and in its bridge simulation,
+// relative to the largest group's power: far below what changes any reported figure.
+constexpr double kPowerTolerance = 1e-6;
 
 // Constant power drawn at each bus by loads, motors and table-spectrum drive groups.
 std::vector<Complex> FixedPowerDrawn(const Plant& plant, const Network& net) {
@@ -91,7 +92,7 @@ OperatingPoint SolveOperatingPoint(const Plant& plant, const Network& net, int t
       op.drives[bridges[n]].current = std::move(spectra[n].current);
       op.drives[bridges[n]].bridge = std::move(spectra[n]);
     }
-    if (change <= kPowerTolerance * std::max(1.0, scale)) break;
+    if (change <= kPowerTolerance * scale) break;
     if (round == kMaxRounds) {
       throw SolveError(fmt::format("the load flow and the bridge model did not agree after {} rounds "
                                    "(last change {:.3g} kVA)", kMaxRounds, change * kBaseVa / 1e3));

@@ -44,12 +44,31 @@ void WritePcc(JsonWriter& j, const PccResult& pcc) {
   j.Field("isc_a", pcc.isc_a);
   if (pcc.demand_current_a) j.Field("isc_over_il", pcc.isc_a / *pcc.demand_current_a);
   if (pcc.tdd_percent) j.Field("tdd_percent", *pcc.tdd_percent);
+  if (pcc.tdd_limit_percent) j.Field("tdd_limit_percent", *pcc.tdd_limit_percent);
   j.Key("harmonics").BeginArray();
   for (const PccHarmonic& h : pcc.harmonics) {
     j.BeginObject().Field("order", h.order).Field("amps", h.amps);
-    j.Field("percent_of_il", h.percent_of_il).EndObject();
+    j.Field("percent_of_il", h.percent_of_il);
+    if (h.limit_percent) j.Field("limit_percent", *h.limit_percent).Field("pass", *h.pass);
+    j.EndObject();
   }
   j.EndArray().EndObject();
+}
+
+void WriteViolations(JsonWriter& j, const char* key, const std::vector<Violation>& list) {
+  j.Key(key).BeginArray();
+  for (const Violation& v : list) {
+    j.BeginObject().Field("where", v.where).Field("what", v.what).Field("value", v.value);
+    j.Field("limit", v.limit).EndObject();
+  }
+  j.EndArray();
+}
+
+void WriteAssessment(JsonWriter& j, const Assessment& a) {
+  j.Key("assessment").BeginObject().Field("profile", a.profile).Field("title", a.title);
+  WriteViolations(j, "violations", a.violations);
+  WriteViolations(j, "design_guide", a.design_guide);
+  j.EndObject();
 }
 
 // IEEE 18 duty, C57.110 derating and the present state's resonance peaks.
@@ -136,6 +155,7 @@ void WriteStudyJson(const StudyResult& r, std::ostream& out) {
 
   WritePcc(j, r.pcc);
   WriteDutyAndResonances(j, r);
+  WriteAssessment(j, r.assessment);
   j.StringArray("warnings", r.warnings);
   j.StringArray("cautions", r.cautions);
   j.EndObject();

@@ -5,6 +5,7 @@
 #include <fmt/format.h>
 #include <fmt/ostream.h>
 
+#include "assessment.h"
 #include "capacitor_duty.h"
 #include "overtone/report.h"
 
@@ -124,6 +125,7 @@ void PrintStudyTables(const StudyResult& r, std::ostream& out) {
   }
   fmt::print(out, "\n");
   PrintDutyAndResonances(r, out);
+  internal::PrintLimitTables(r, out);
 
   if (!r.warnings.empty()) {
     fmt::print(out, "\nWarnings\n");

@@ -7,9 +7,11 @@
 
 #include <fmt/format.h>
 
+#include "assessment.h"
 #include "capacitor_duty.h"
 #include "harmonic_solve.h"
 #include "indices.h"
+#include "limit_profile.h"
 #include "load_flow.h"
 #include "network.h"
 #include "operating_point.h"
@@ -132,7 +134,10 @@ PccResult AssessPcc(const Plant& plant, const Network& net, const internal::Harm
     for (int h = 2; h <= max_order; ++h) {
       const double amps = std::abs(pcc.current_a.at(h));
       sum_sq += amps * amps;
-      pcc.harmonics.push_back({h, amps, 100.0 * amps / il});
+      PccHarmonic& row = pcc.harmonics.emplace_back();
+      row.order = h;
+      row.amps = amps;
+      row.percent_of_il = 100.0 * amps / il;
     }
     pcc.tdd_percent = 100.0 * std::sqrt(sum_sq) / il;
   }
@@ -154,6 +159,7 @@ const std::vector<std::string>& StandardCautions() {
 }
 
 StudyResult RunStudy(const Plant& plant, const StudyOptions& options) {
+  const internal::LimitProfile profile = internal::LoadLimitProfile(plant.study.limits);
   const Network net(plant);
   const int max_order = plant.study.max_order;
   StudyResult result;
@@ -217,7 +223,8 @@ StudyResult RunStudy(const Plant& plant, const StudyOptions& options) {
       current[h] = st.yff * sol.at(h, br.from) + st.yft * sol.at(h, br.to);
     }
     r.current_a = Scaled(current, net.BaseAmps(br.from));
-    r.indices = internal::ComputeIndices(r.current_a.by_order, internal::kNegligibleCurrentA);
+    r.indices = internal::ComputeIndices(r.current_a.by_order, internal::kNegligibleCurrentA,
+                                           /*with_peak=*/false);  // not reported for branches
     result.branches.push_back(std::move(r));
   }
   for (std::size_t k = 0; k < plant.drives.size(); ++k) {
@@ -249,6 +256,7 @@ StudyResult RunStudy(const Plant& plant, const StudyOptions& options) {
   result.capacitors = internal::CapacitorDuties(plant, result.buses);
   result.transformers = internal::TransformerDeratings(plant, result.branches);
   if (options.scan) result.resonances = internal::ScreenPresentState(plant, result, options.threads);
+  internal::AssessLimits(profile, result);
   return result;
 }
 

@@ -4,7 +4,8 @@
 # Usage: cli_bad_input.sh OVERTONE_BINARY SOURCE_DIR
 # For three files of tests/bad, runs `overtone check FILE` and `overtone study FILE --json OUT`
 # and checks the contract of PLANT-FORMAT.md "Errors": exit status 2, `file:line:col: error:` on
-# stderr (at the place the file's `# expect:` line names), and OUT not created.
+# stderr (at the place the file's `# expect:` line names), and OUT not created; then two
+# generated adversarial files.
 set -u
 if [ $# -ne 2 ]; then
   echo "usage: $0 OVERTONE_BINARY SOURCE_DIR" >&2
@@ -31,7 +32,8 @@ expect_input_error() {
   [ "$status" -eq 2 ] || fail "$name: exit status $status, expected 2"
   grep -Eq '^.+:[0-9]+:[0-9]+: error: ' "$WORK/stderr" ||
     fail "$name: no 'file:line:col: error:' on stderr"
-  grep -Fq "$place: error: " "$WORK/stderr" || fail "$name: no error at $place on stderr"
+  grep -Eq "^$(printf '%s' "$place" | sed 's/[.[\*^$/]/\\&/g')(:[0-9]+:[0-9]+)?: error: " \
+    "$WORK/stderr" || fail "$name: no error at $place on stderr"
   if [ -n "$out" ] && [ -e "$out" ]; then fail "$name: $out was written"; fi
 }
 
@@ -43,6 +45,16 @@ for case in syntax_error wrong_unit unknown_bus; do
   expect_input_error "study $case" "$file:$line_col" "$WORK/$case.json" \
     "$BIN" study "$file" --json "$WORK/$case.json"
 done
+
+# Generated here, too big to keep: 10,000 nested `[` (refused at the 65th, column 72 of line 2)
+# and 50 MB of random bytes from a fixed seed (refused at the first byte that is not UTF-8).
+python3 -c "import sys; sys.stdout.write('overtone: 1\nbuses: ' + '[' * 10000)" >"$WORK/deep.yaml"
+expect_input_error "study deep nesting" "$WORK/deep.yaml:2:72" "$WORK/deep.json" \
+  "$BIN" study "$WORK/deep.yaml" --json "$WORK/deep.json"
+python3 -c "import random, sys; random.seed(8); sys.stdout.buffer.write(random.randbytes(50 << 20))" \
+  >"$WORK/random.yaml"
+expect_input_error "study random bytes" "$WORK/random.yaml" "$WORK/random.json" \
+  "$BIN" study "$WORK/random.yaml" --json "$WORK/random.json"
 
 if [ "$failures" -ne 0 ]; then
   echo "$failures CLI bad-input check(s) failed" >&2

@@ -80,6 +80,8 @@ struct PccHarmonic {
   int order = 0;
   double amps = 0.0;
   double percent_of_il = 0.0;
+  std::optional<double> limit_percent;  // of I_L; empty when the profile has no current limit here
+  std::optional<bool> pass;
 };
 
 struct PccResult {
@@ -89,6 +91,7 @@ struct PccResult {
   double isc_a = 0.0;
   Spectrum current_a;  // entering the pcc from the utility side
   std::optional<double> tdd_percent;
+  std::optional<double> tdd_limit_percent;  // from the limit profile, when it has current limits
   std::vector<PccHarmonic> harmonics;
 };
 
@@ -139,6 +142,36 @@ struct Resonance {
   ResonancePeak peak;
 };
 
+// A figure beyond its limit: `what` is thd_v, v_h<N>, tdd, i_h<N>, cap_vrms, cap_vpeak, cap_irms
+// or cap_kvar; value and limit in percent (PLANT-FORMAT.md "JSON written by the commands").
+struct Violation {
+  std::string where;  // bus or capacitor name
+  std::string what;
+  double value = 0.0;
+  double limit = 0.0;
+};
+
+// The voltage check of one bus against the profile's class for its nominal voltage.
+struct BusLimitCheck {
+  std::string bus;
+  bool design_guide = false;  // an internal bus under a pcc-only profile: shown, not a violation
+  double thd_percent = 0.0;
+  double thd_limit_percent = 0.0;
+  int worst_order = 0;  // the order closest to (or furthest over) its limit; 0: no limited order
+  double worst_percent = 0.0;
+  double worst_limit_percent = 0.0;
+  bool pass = true;
+};
+
+// Limit assessment of a study (docs/limits.md).
+struct Assessment {
+  std::string profile;  // profile name, e.g. "ieee519"
+  std::string title;    // e.g. "IEEE Std 519-2014"
+  std::vector<BusLimitCheck> buses;
+  std::vector<Violation> violations;    // the pcc (or every bus, per profile) and capacitor duty
+  std::vector<Violation> design_guide;  // internal buses under a pcc-only profile
+};
+
 struct StudyResult {
   StudySettings study;
   std::vector<BusResult> buses;
@@ -148,6 +181,7 @@ struct StudyResult {
   std::vector<CapacitorDuty> capacitors;     // banks with steps in service, then filters
   std::vector<TransformerDerating> transformers;
   std::vector<Resonance> resonances;         // present step state, pcc and capacitor/filter buses
+  Assessment assessment;
   int load_flow_iterations = 0;
   std::vector<std::string> warnings;
   std::vector<std::string> cautions;

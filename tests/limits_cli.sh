@@ -1,0 +1,67 @@
+#!/usr/bin/env bash
+# tests/limits_cli.sh — the limit assessment through `overtone study`: Limits table, JSON
+# assessment, --fail-on-violation (exit 3 after writing outputs), a bad profile file (exit 2,
+# located error, nothing written). Exit statuses from PLANT-FORMAT.md "Exit status".
+#
+# Usage: limits_cli.sh OVERTONE_BINARY SOURCE_DIR
+set -u
+if [ $# -ne 2 ]; then
+  echo "usage: $0 OVERTONE_BINARY SOURCE_DIR" >&2
+  exit 2
+fi
+BIN=$1
+PLANTS=$2/tests/plants
+WORK=$(mktemp -d)
+trap 'rm -rf "$WORK"' EXIT
+failures=0
+
+fail() {
+  echo "FAIL: $*" >&2
+  failures=$((failures + 1))
+}
+
+run() {
+  local name=$1 expected=$2 status=0
+  shift 2
+  "$@" >"$WORK/$name.out" 2>"$WORK/$name.err" || status=$?
+  [ "$status" -eq "$expected" ] ||
+    fail "$name: exit status $status, expected $expected ($(head -c 300 "$WORK/$name.err"))"
+}
+
+# 1. The bench passes IEEE 519 (THDv 2.8 % < 8 %): exit 0 even with --fail-on-violation.
+run pass 0 "$BIN" study "$PLANTS/spectrum-bench.yaml" --no-scan --fail-on-violation
+grep -q '^Limits (IEEE Std 519-2014, profile ieee519)$' "$WORK/pass.out" || fail "pass: no Limits heading"
+grep -q '^Violations: none$' "$WORK/pass.out" || fail "pass: violations reported"
+
+# 2. The strict user profile fails: exit 3, and the JSON is still written in full.
+run strict 3 "$BIN" study "$PLANTS/limits-strict.yaml" --no-scan --fail-on-violation --json "$WORK/strict.json"
+[ -s "$WORK/strict.json" ] || fail "strict: no JSON written"
+python3 - "$WORK/strict.json" <<'PY' || fail "strict: JSON assessment"
+import json, sys
+doc = json.load(open(sys.argv[1]))
+a = doc["assessment"]
+assert a["profile"] == "strict-test", a["profile"]
+whats = {v["what"] for v in a["violations"]}
+assert {"thd_v", "v_h5", "tdd", "i_h5"} <= whats, whats
+assert a["design_guide"] == [], a["design_guide"]
+thd = [v for v in a["violations"] if v["what"] == "thd_v"][0]
+assert thd["limit"] == 2.0 and thd["value"] == doc["buses"][0]["thd_v_percent"], thd
+h = [x for x in doc["pcc"]["harmonics"] if x["order"] == 5][0]
+assert h["limit_percent"] == 1.0 and h["pass"] is False, h
+assert doc["pcc"]["harmonics"][0]["limit_percent"] == 0.25  # order 2: even, 25 %
+assert doc["pcc"]["tdd_limit_percent"] == 1.5
+PY
+grep -q 'FAIL' "$WORK/strict.out" || fail "strict: no FAIL in the Limits table"
+run strict_plain 0 "$BIN" study "$PLANTS/limits-strict.yaml" --no-scan
+
+# 3. A profile file with an error: exit 2, file:line:col, no JSON left behind.
+run broken 2 "$BIN" study "$PLANTS/bad/limits-broken.yaml" --json "$WORK/broken.json"
+grep -q 'broken-profile.yaml:7:13: error: `thd` must be a number' "$WORK/broken.err" ||
+  fail "broken: no located error ($(cat "$WORK/broken.err"))"
+[ ! -e "$WORK/broken.json" ] || fail "broken: JSON written"
+
+if [ "$failures" -ne 0 ]; then
+  echo "$failures check(s) failed" >&2
+  exit 1
+fi
+echo "limits CLI: all checks passed"
