@@ -212,7 +212,7 @@ class SixPulseCircuit : public SwitchedCircuit {
     id = Encode({-c[2], -c[0], -c[1]});
   }
 
-  SwitchingRow Emf(int k) const { return Sinusoid(kPhasePeak, PhaseOf(k)); }
+  static SwitchingRow Emf(int k) { return Sinusoid(kPhasePeak, PhaseOf(k)); }
 
  private:
   BridgeParameters p_;
@@ -401,14 +401,34 @@ BridgeSolution SampleCycle(const BridgeParameters& p, Simulator& sim, PeriodicSt
   return s;
 }
 
-// Steady state and samples for one value of the free parameter (load conductance or DC current).
-BridgeSolution Evaluate(const BridgeParameters& p, double parameter, PeriodicState& warm) {
+// The terminal input power at a periodic state, averaged over one symmetry segment (the
+// three-phase sum, or the line pair's power, repeats from segment to segment).
+BridgeSolution SegmentPower(const BridgeParameters& p, Simulator& sim, PeriodicState x, int steps) {
+  const bool single_phase = p.circuit == BridgeCircuit::kSinglePhase;
+  double power = 0.0;
+  sim.Run(x.z, x.topology, steps, [&](const StateVector& z, int id) {
+    if (single_phase) {
+      const double i = SinglePhaseCircuit::Sign(id) * z[0];
+      power += SinglePhaseCircuit::Emf().dot(z) * i - p.r_supply * i * i;
+      return;
+    }
+    for (int k = 0; k < 3; ++k) power += SixPulseCircuit::Emf(k).dot(z) * z[k] - p.r_supply * z[k] * z[k];
+  });
+  BridgeSolution s;
+  s.power = power / steps;
+  return s;
+}
+
+// Steady state for one value of the free parameter (load conductance or DC current): with
+// `sampled`, the full period's samples and figures; otherwise the power alone.
+BridgeSolution Evaluate(const BridgeParameters& p, double parameter, PeriodicState& warm,
+                        bool sampled) {
   const double dt = 2.0 * kPi / kSamplesPerCycle;
   if (p.circuit == BridgeCircuit::kSinglePhase) {
     SinglePhaseCircuit circuit(p, parameter);
     Simulator sim(circuit, dt);
     warm = FindPeriodicState(sim, warm, kSamplesPerCycle / 2, 0.0, SinglePhaseCircuit::Rotate);
-    return SampleCycle(p, sim, warm, 0.0);
+    return sampled ? SampleCycle(p, sim, warm, 0.0) : SegmentPower(p, sim, warm, kSamplesPerCycle / 2);
   }
   SixPulseCircuit circuit(p, parameter);
   Simulator sim(circuit, dt);
@@ -425,7 +445,7 @@ BridgeSolution Evaluate(const BridgeParameters& p, double parameter, PeriodicSta
   }
   SetTheta(warm.z, theta0);
   warm = FindPeriodicState(sim, warm, kSamplesPerCycle / 6, theta0, SixPulseCircuit::Rotate);
-  return SampleCycle(p, sim, warm, theta0);
+  return sampled ? SampleCycle(p, sim, warm, theta0) : SegmentPower(p, sim, warm, kSamplesPerCycle / 6);
 }
 
 // The free parameter that reaches the requested power: the DC load conductance (P ~ G V_dc^2,
@@ -434,25 +454,26 @@ BridgeSolution ReachPower(const BridgeParameters& p) {
   const bool stiff = p.circuit == BridgeCircuit::kSixPulseStiff;
   PeriodicState warm;
   if (!stiff) warm.z[kVdc] = std::sqrt(2.0);  // open bridge, DC link at the line-to-line peak
-  if (p.power <= 0.0) return Evaluate(p, stiff ? 0.0 : 1e-9, warm);
+  if (p.power <= 0.0) return Evaluate(p, stiff ? 0.0 : 1e-9, warm, true);
   double x0 = stiff ? p.power / (1.35 * std::cos(p.firing_deg * kPi / 180.0))
                     : p.power / (1.35 * 1.35);
-  BridgeSolution s0 = Evaluate(p, x0, warm);
-  double x1 = x0 * p.power / std::max(s0.power, 1e-12);
+  double p0 = Evaluate(p, x0, warm, false).power;
+  double x1 = x0 * p.power / std::max(p0, 1e-12);
   for (int it = 0; it < 40; ++it) {
-    BridgeSolution s1 = Evaluate(p, x1, warm);
-    if (std::abs(s1.power - p.power) <= 1e-9 + 1e-7 * p.power) return s1;
-    const double slope = (s1.power - s0.power) / (x1 - x0);
-    double x2 = slope > 0.0 ? x1 + (p.power - s1.power) / slope : 2.0 * x1;
+    const double p1 = Evaluate(p, x1, warm, false).power;
+    // The period is sampled once, at the level found (its steady state is already in `warm`).
+    if (std::abs(p1 - p.power) <= 1e-9 + 1e-7 * p.power) return Evaluate(p, x1, warm, true);
+    const double slope = (p1 - p0) / (x1 - x0);
+    double x2 = slope > 0.0 ? x1 + (p.power - p1) / slope : 2.0 * x1;
     x2 = std::clamp(x2, 0.25 * x1, 4.0 * x1);
     x0 = x1;
-    s0 = std::move(s1);
+    p0 = p1;
     x1 = x2;
   }
   throw SolveError(fmt::format(
       "bridge model: the front end cannot draw {:.3g} of its rating from this supply (it reaches "
       "{:.3g}); the supply is too weak for the drive's power, or the firing angle too large",
-      p.power, s0.power));
+      p.power, p0));
 }
 
 }  // namespace
