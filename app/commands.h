@@ -25,6 +25,8 @@ Command AddCheckCommand(CLI::App& app);
 Command AddStudyCommand(CLI::App& app);
 Command AddScanCommand(CLI::App& app);
 Command AddSpectrumCommand(CLI::App& app);
+Command AddReportCommand(CLI::App& app);
+Command AddSweepCommand(CLI::App& app);
 
 }  // namespace overtone::app
 

@@ -14,7 +14,8 @@ int main(int argc, char** argv) {
   app.set_version_flag("--version", std::string("overtone ") + OVERTONE_VERSION);
   app.require_subcommand(1);
   const std::vector<Command> commands = {AddCheckCommand(app), AddStudyCommand(app),
-                                         AddScanCommand(app), AddSpectrumCommand(app)};
+                                         AddScanCommand(app), AddSpectrumCommand(app),
+                                         AddSweepCommand(app), AddReportCommand(app)};
 
   try {
     app.parse(argc, argv);

@@ -15,6 +15,7 @@ Command AddCheckCommand(CLI::App& app) {
   cmd->add_option("PLANT", *plant_path, "plant file (YAML, format 1)")->required();
   return {cmd, [plant_path]() {
     const Plant plant = LoadPlant(*plant_path);
+    CheckLimitProfile(plant);
     PrintPlantSummary(plant, std::cout);
     std::cout << "no errors found\n";
     return kExitOk;

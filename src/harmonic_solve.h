@@ -39,6 +39,13 @@ HarmonicSolution SolveHarmonics(const Network& network,
                                 const std::vector<std::vector<Injection>>& injections,
                                 int max_order, int threads);
 
+// The same for several sets of sources at once (sets[s][h]: set s's currents at order h), one
+// solution per set: each order is factored once and serves every set's right-hand side. By
+// linearity the solutions add up to the solve of all sets together.
+std::vector<HarmonicSolution> SolveHarmonicsBySource(
+    const Network& network, const std::vector<std::vector<std::vector<Injection>>>& sets,
+    int max_order, int threads);
+
 }  // namespace overtone::internal
 
 #endif  // OVERTONE_INTERNAL_HARMONIC_SOLVE_H_

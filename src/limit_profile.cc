@@ -11,6 +11,7 @@
 #include <yaml-cpp/yaml.h>
 
 #include "overtone/errors.h"
+#include "overtone/load.h"
 
 namespace overtone::internal {
 namespace {
@@ -264,7 +265,12 @@ class ProfileReader {
     return p;
   }
 
-  [[noreturn]] void Throw() { throw InputError(std::move(errors_)); }
+  [[noreturn]] void Throw() {
+    std::stable_sort(errors_.begin(), errors_.end(), [](const Diagnostic& a, const Diagnostic& b) {
+      return std::pair(a.where.line, a.where.column) < std::pair(b.where.line, b.where.column);
+    });
+    throw InputError(std::move(errors_));
+  }
 
  private:
   std::string file_;
@@ -330,3 +336,9 @@ LimitProfile LoadLimitProfile(const std::string& name_or_path) {
 }
 
 }  // namespace overtone::internal
+
+namespace overtone {
+
+void CheckLimitProfile(const Plant& plant) { internal::LoadLimitProfile(plant.study.limits); }
+
+}  // namespace overtone

@@ -48,7 +48,7 @@ struct LimitProfile {
 };
 
 // The directory that holds the built-in profiles: <executable>/../share/overtone/limits when it
-// exists, else the source tree's data/limits (compile definition).
+// exists, else the source tree's src/limits (compile definition).
 std::string BuiltinLimitsDir();
 
 // Reads a profile file. Throws InputError naming file, line and column for every problem found.

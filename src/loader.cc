@@ -20,7 +20,6 @@
 #include <optional>
 #include <set>
 #include <span>
-#include <sstream>
 #include <stdexcept>
 #include <string>
 #include <string_view>
@@ -144,6 +143,9 @@ std::string ResolvePath(const std::string& naming_file, const std::string& path)
   return (fs::path(naming_file).parent_path() / path).lexically_normal().string();
 }
 
+// Largest plant file read (bytes); far above any real plant, below a runaway device or log.
+constexpr size_t kMaxFileBytes = size_t{64} << 20;
+
 std::optional<std::string> ReadTextFile(const std::string& path, std::string* error) {
   std::error_code code;
   if (fs::is_directory(path, code)) {
@@ -155,13 +157,22 @@ std::optional<std::string> ReadTextFile(const std::string& path, std::string* er
     *error = std::strerror(errno);
     return std::nullopt;
   }
-  std::ostringstream text;
-  text << in.rdbuf();
+  // Read in blocks up to a cap, so that a device such as /dev/zero is refused, not read forever.
+  std::string text;
+  std::array<char, 1 << 16> block;
+  while (in.read(block.data(), block.size()) || in.gcount() > 0) {
+    text.append(block.data(), static_cast<size_t>(in.gcount()));
+    if (text.size() > kMaxFileBytes) {
+      *error = fmt::format("it is larger than {} MB; a plant file is a few kilobytes",
+                           kMaxFileBytes >> 20);
+      return std::nullopt;
+    }
+  }
   if (in.bad()) {
     *error = "read failed";
     return std::nullopt;
   }
-  return text.str();
+  return text;
 }
 
 // ---------------------------------------------------------------------------------------------
@@ -246,11 +257,14 @@ bool CheckText(const std::string& file, std::string_view text, Diagnostics* diag
 // recursion (and the stack) small whatever the input.
 constexpr int kMaxFlowDepth = 64;
 
-// Reports the first `[` or `{` nested deeper than kMaxFlowDepth, outside quotes and comments.
+// Reports the first `[` or `{` nested deeper than kMaxFlowDepth, outside quotes and comments,
+// and a `,` that begins a line (or follows `---`) outside `[...]` and `{...}`: never part of a
+// plant file, and yaml-cpp 0.7 loops forever on some of them (found by tools/fuzz).
 bool CheckNesting(const std::string& file, std::string_view text, Diagnostics* diagnostics) {
   int depth = 0;
   int line = 1;
   int column = 0;
+  size_t line_start = 0;
   char quote = 0;  // the open quote, 0 outside quotes
   bool comment = false;
   char previous = '\n';
@@ -260,8 +274,10 @@ bool CheckNesting(const std::string& file, std::string_view text, Diagnostics* d
     if (c == '\n') {
       ++line;
       column = 0;
+      line_start = pos + 1;
       comment = false;
     } else if (comment) {
+      // nothing nests inside a comment
     } else if (quote != 0) {
       if (quote == '"' && c == '\\') {
         ++pos;  // an escaped character
@@ -284,6 +300,14 @@ bool CheckNesting(const std::string& file, std::string_view text, Diagnostics* d
       }
     } else if ((c == ']' || c == '}') && depth > 0) {
       --depth;
+    } else if (c == ',' && depth == 0) {
+      std::string_view before = text.substr(line_start, pos - line_start);
+      before.remove_prefix(std::min(before.find_first_not_of(' '), before.size()));
+      if (before.empty() || before.starts_with("---")) {
+        diagnostics->Error({file, line, column},
+                           "a `,` separates entries only inside `[...]` or `{...}`");
+        return false;
+      }
     }
     previous = c;
   }

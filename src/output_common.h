@@ -14,6 +14,21 @@ namespace overtone::internal {
 // Angle in degrees; a zero phasor has angle 0 (PLANT-FORMAT.md "Conventions").
 inline double AngleDeg(Phasor x) { return x == Phasor{} ? 0.0 : std::arg(x) * 180.0 / std::numbers::pi; }
 
+// Text for XML and HTML content and attribute values.
+inline std::string XmlEscape(const std::string& s) {
+  std::string out;
+  for (char c : s) {
+    switch (c) {
+      case '&': out += "&amp;"; break;
+      case '<': out += "&lt;"; break;
+      case '>': out += "&gt;"; break;
+      case '"': out += "&quot;"; break;
+      default: out += c;
+    }
+  }
+  return out;
+}
+
 // RFC 4180 quoting for names that hold a comma, quote or line break.
 inline std::string CsvField(const std::string& s) {
   if (s.find_first_of(",\"\r\n") == std::string::npos) return s;

@@ -37,7 +37,9 @@ void WriteStudyCsv(const StudyResult& r, const std::string& dir) {
       for (std::size_t h = 2; h < b.voltage_pu.by_order.size(); ++h) {
         const Phasor v = b.voltage_pu.by_order[h];
         const double percent = b.indices.fundamental > 0 ? 100.0 * std::abs(v) / b.indices.fundamental : 0.0;
-        fmt::print(out, "{},{},{},{}\n", CsvField(b.name), h, percent, AngleDeg(v));
+        // Non-vector summation has magnitudes only: the angle is left empty.
+        const std::string angle = r.study.summation == Summation::kVector ? fmt::format("{}", AngleDeg(v)) : "";
+        fmt::print(out, "{},{},{},{}\n", CsvField(b.name), h, percent, angle);
       }
     }
   });

@@ -16,8 +16,9 @@ double PercentOf(Phasor x, double fundamental, double negligible) {
   return fundamental > negligible ? 100.0 * std::abs(x) / fundamental : 0.0;
 }
 
-// Orders 2..max_order; `amps` adds the magnitude in amperes (currents).
-void WriteHarmonics(JsonWriter& j, const Spectrum& s, bool amps) {
+// Orders 2..max_order; `amps` adds the magnitude in amperes (currents); `angles` is false for
+// non-vector summation, whose magnitudes have no angle (PLANT-FORMAT.md "Conventions").
+void WriteHarmonics(JsonWriter& j, const Spectrum& s, bool amps, bool angles = true) {
   const double fundamental = std::abs(s.at(1));
   const double negligible = amps ? internal::kNegligibleCurrentA : internal::kNegligibleVoltagePu;
   j.Key("harmonics").BeginArray();
@@ -25,7 +26,9 @@ void WriteHarmonics(JsonWriter& j, const Spectrum& s, bool amps) {
     const Phasor x = s.by_order[h];
     j.BeginObject().Field("order", static_cast<int>(h));
     if (amps) j.Field("amps", std::abs(x));
-    j.Field("percent", PercentOf(x, fundamental, negligible)).Field("angle_deg", AngleDeg(x)).EndObject();
+    j.Field("percent", PercentOf(x, fundamental, negligible));
+    if (angles) j.Field("angle_deg", AngleDeg(x));
+    j.EndObject();
   }
   j.EndArray();
 }
@@ -128,13 +131,14 @@ void WriteStudyJson(const StudyResult& r, std::ostream& out) {
   j.Key("study").BeginObject().Field("name", r.study.name).Field("frequency_hz", r.study.frequency_hz);
   j.Field("max_order", r.study.max_order).Field("summation", ToString(r.study.summation)).EndObject();
 
+  const bool vector = r.study.summation == Summation::kVector;
   j.Key("buses").BeginArray();
   for (const BusResult& b : r.buses) {
     j.BeginObject().Field("name", b.name).Field("kv", b.nominal_v / 1e3);
     j.Field("v1_pu", b.indices.fundamental).Field("v1_angle_deg", AngleDeg(b.voltage_pu.at(1)));
     j.Field("thd_v_percent", b.indices.thd_percent).Field("vrms_pu", b.indices.rms);
     j.Field("vpeak_pu", b.indices.peak);
-    WriteHarmonics(j, b.voltage_pu, false);
+    WriteHarmonics(j, b.voltage_pu, false, vector);
     j.EndObject();
   }
   j.EndArray();
@@ -144,7 +148,7 @@ void WriteStudyJson(const StudyResult& r, std::ostream& out) {
     j.BeginObject().Field("name", b.name).Field("kind", b.kind).Field("from", b.from).Field("to", b.to);
     WriteCurrentSummary(j, b.current_a, b.indices);
     j.Field("irms_a", b.indices.rms);
-    WriteHarmonics(j, b.current_a, true);
+    WriteHarmonics(j, b.current_a, true, vector);
     j.EndObject();
   }
   j.EndArray();

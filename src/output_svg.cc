@@ -12,11 +12,14 @@
 #include <fmt/format.h>
 #include <fmt/ostream.h>
 
+#include "output_common.h"
 #include "overtone/report.h"
 #include "overtone/scan.h"
 
 namespace overtone {
 namespace {
+
+using internal::XmlEscape;
 
 constexpr double kWidth = 760, kPlotLeft = 78, kPlotRight = 736, kPlotTop = 52, kPlotBottom = 352;
 constexpr double kLegendTop = 412, kLegendRow = 18;
@@ -38,20 +41,6 @@ struct Curve {
   const std::vector<ResonancePeak>* peaks;  // nullptr: none marked
   Style style;
 };
-
-std::string Escape(const std::string& s) {
-  std::string out;
-  for (char c : s) {
-    switch (c) {
-      case '&': out += "&amp;"; break;
-      case '<': out += "&lt;"; break;
-      case '>': out += "&gt;"; break;
-      case '"': out += "&quot;"; break;
-      default: out += c;
-    }
-  }
-  return out;
-}
 
 // Letters, digits, '.', '_' and '-' kept; anything else becomes '_'.
 std::string FileStem(const std::string& bus) {
@@ -115,7 +104,7 @@ void WriteChart(std::ostream& out, const std::string& bus, const std::vector<Cur
              "font-family=\"Helvetica, Arial, sans-serif\" font-size=\"12\">\n", kWidth, height);
   fmt::print(out, "<rect width=\"100%\" height=\"100%\" fill=\"#ffffff\"/>\n");
   fmt::print(out, "<text x=\"{}\" y=\"22\" font-size=\"15\" font-weight=\"bold\">Driving-point impedance "
-             "at {}</text>\n", kPlotLeft, Escape(bus));
+             "at {}</text>\n", kPlotLeft, XmlEscape(bus));
   fmt::print(out, "<text x=\"{}\" y=\"40\" fill=\"#444444\">Characteristic orders 6k\u00b11 marked; "
              "circles: peaks (filled: high risk)</text>\n", kPlotLeft);
 
@@ -182,7 +171,7 @@ void WriteChart(std::ostream& out, const std::string& bus, const std::vector<Cur
       peaks += fmt::format("{}{:.2f}{}", peaks.empty() ? "; peaks at " : ", ", p.order,
                            p.risk == Risk::kLow ? "" : " (" + ToString(p.risk) + ")");
     }
-    fmt::print(out, "<text x=\"{}\" y=\"{:.1f}\">{}</text>\n", kPlotLeft + 50, y, Escape(c.label + peaks));
+    fmt::print(out, "<text x=\"{}\" y=\"{:.1f}\">{}</text>\n", kPlotLeft + 50, y, XmlEscape(c.label + peaks));
   }
   fmt::print(out, "</svg>\n");
 }

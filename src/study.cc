@@ -18,6 +18,7 @@
 #include "overtone/errors.h"
 #include "scan.h"
 #include "spectra.h"
+#include "summation.h"
 #include "transformer_derating.h"
 
 namespace overtone {
@@ -46,10 +47,17 @@ Complex BackgroundEmf(const Supply& s, int h) {
   return {};
 }
 
+// A source's EMF at order h; triplen backgrounds are ignored (PLANT-FORMAT.md "Conventions").
 Complex SourceEmfAt(const Network& net, const internal::SourceRef& src, int h) {
   if (h == 1) return net.SourceEmf(src);
-  return src.supply ? BackgroundEmf(*src.supply, h) : Complex{};
+  return src.supply && h % 3 != 0 ? BackgroundEmf(*src.supply, h) : Complex{};
 }
+
+// One harmonic source of the plant: a drive group or a supply's background, with its currents.
+struct HarmonicSource {
+  const Supply* background_of = nullptr;  // null: a drive group
+  std::vector<std::vector<Injection>> injections;  // by order
+};
 
 // Buses reachable from `start` over branches without passing `blocked`.
 bool ReachesSource(const Network& net, int start, int blocked) {
@@ -76,37 +84,63 @@ bool ReachesSource(const Network& net, int start, int blocked) {
   return false;
 }
 
-PccResult AssessPcc(const Plant& plant, const Network& net, const internal::HarmonicSolution& sol,
+std::string PccBus(const Plant& plant) {
+  if (!plant.study.pcc.empty()) return plant.study.pcc;
+  return !plant.supplies.empty() ? plant.supplies.front().bus : plant.generators.front().bus;
+}
+
+// Branch current at its from end at order h (pu of the from bus's base current).
+Complex BranchCurrentAt(const Network& net, const internal::BranchRef& br,
+                        const internal::HarmonicSolution& sol, int h) {
+  const internal::BranchStamp st = net.Stamp(br, h, internal::SequenceOf(h));
+  return st.yff * sol.at(h, br.from) + st.yft * sol.at(h, br.to);
+}
+
+// The current entering the pcc bus p from the utility side at order h (pu): of the whole solve,
+// or of one source's own solution (then only that source's background EMF, if any, is present).
+class PccMeter {
+ public:
+  PccMeter(const Network& net, int p) : net_(net), p_(p) {
+    // The branches at the pcc that lead toward a supply without passing it.
+    for (const auto& b : net.branches()) {
+      if ((b.from == p || b.to == p) && ReachesSource(net, b.from == p ? b.to : b.from, p)) {
+        utility_side_.push_back(&b);
+      }
+    }
+  }
+
+  Complex At(const internal::HarmonicSolution& sol, int h, const HarmonicSource* source = nullptr) const {
+    Complex current;
+    const internal::Sequence seq = internal::SequenceOf(h);
+    for (const auto& s : net_.sources()) {
+      if (s.bus != p_) continue;
+      const bool own = !source || (source->background_of && source->background_of == s.supply);
+      current += ((own ? SourceEmfAt(net_, s, h) : Complex{}) - sol.at(h, p_)) / net_.SourceImpedance(s, h);
+    }
+    for (const internal::BranchRef* branch : utility_side_) {
+      const internal::BranchRef& b = *branch;
+      const internal::BranchStamp st = net_.Stamp(b, h, seq);
+      const Complex vf = sol.at(h, b.from), vt = sol.at(h, b.to);
+      current -= b.from == p_ ? st.yff * vf + st.yft * vt : st.ytf * vf + st.ytt * vt;
+    }
+    return current;
+  }
+
+ private:
+  const Network& net_;
+  int p_;
+  std::vector<const internal::BranchRef*> utility_side_;
+};
+
+// `current`: entering the pcc from the utility side by order, in amperes.
+PccResult AssessPcc(const Plant& plant, const Network& net, Spectrum current,
                     std::vector<std::string>& warnings) {
   PccResult pcc;
-  pcc.bus = plant.study.pcc;
-  if (pcc.bus.empty()) {
-    pcc.bus = !plant.supplies.empty() ? plant.supplies.front().bus : plant.generators.front().bus;
-  }
+  pcc.bus = PccBus(plant);
   const int p = net.BusIndex(pcc.bus);
-  const int max_order = sol.max_order;
+  const int max_order = plant.study.max_order;
   const double base_a = net.BaseAmps(p);
-  // The branches at the pcc that lead toward a supply without passing it.
-  std::vector<const internal::BranchRef*> utility_side;
-  for (const auto& b : net.branches()) {
-    if ((b.from == p || b.to == p) && ReachesSource(net, b.from == p ? b.to : b.from, p)) {
-      utility_side.push_back(&b);
-    }
-  }
-  std::vector<Complex> current(static_cast<std::size_t>(max_order) + 1);
-  for (int h = 1; h <= max_order; ++h) {
-    const internal::Sequence seq = internal::SequenceOf(h);
-    for (const auto& s : net.sources()) {
-      if (s.bus == p) current[h] += (SourceEmfAt(net, s, h) - sol.at(h, p)) / net.SourceImpedance(s, h);
-    }
-    for (const internal::BranchRef* branch : utility_side) {
-      const internal::BranchRef& b = *branch;
-      const internal::BranchStamp st = net.Stamp(b, h, seq);
-      const Complex vf = sol.at(h, b.from), vt = sol.at(h, b.to);
-      current[h] -= b.from == p ? st.yff * vf + st.yft * vt : st.ytf * vf + st.ytt * vt;
-    }
-  }
-  pcc.current_a = Scaled(current, base_a);
+  pcc.current_a = std::move(current);
   pcc.isc_a = base_a / std::abs(internal::ShortCircuitImpedances(net, {p}, internal::SourceSet::kSuppliesOnly)[0]);
 
   if (plant.study.demand_current_a) {
@@ -144,6 +178,40 @@ PccResult AssessPcc(const Plant& plant, const Network& net, const internal::Harm
   return pcc;
 }
 
+// Non-vector summation (PLANT-FORMAT.md "Conventions"): every harmonic magnitude of buses,
+// branches and the pcc current recombined from each source's own solution; angles set to 0.
+void SumBySource(Summation rule, const Network& net, const PccMeter& meter, int pcc_bus,
+                 const std::vector<HarmonicSource>& sources, int threads, StudyResult& result) {
+  std::vector<std::vector<std::vector<Injection>>> sets;
+  for (const HarmonicSource& s : sources) sets.push_back(s.injections);
+  const int max_order = result.study.max_order;
+  const std::vector<internal::HarmonicSolution> sols =
+      internal::SolveHarmonicsBySource(net, sets, max_order, threads);
+  std::vector<Complex> parts(sols.size());
+  const auto combine = [&](int h, const auto& part_of) {
+    for (std::size_t k = 0; k < sols.size(); ++k) parts[k] = part_of(k);
+    return Complex(internal::CombineSources(rule, h, parts));
+  };
+  for (int h = 2; h <= max_order; ++h) {
+    for (int i = 0; i < net.bus_count(); ++i) {
+      result.buses[i].voltage_pu.by_order[h] = combine(h, [&](std::size_t k) { return sols[k].at(h, i); });
+    }
+    for (std::size_t b = 0; b < net.branches().size(); ++b) {
+      const internal::BranchRef& br = net.branches()[b];
+      result.branches[b].current_a.by_order[h] = net.BaseAmps(br.from) *
+          combine(h, [&](std::size_t k) { return BranchCurrentAt(net, br, sols[k], h); });
+    }
+    result.pcc.current_a.by_order[h] = net.BaseAmps(pcc_bus) *
+        combine(h, [&](std::size_t k) { return meter.At(sols[k], h, &sources[k]); });
+  }
+  for (BusResult& b : result.buses) {
+    b.indices = internal::ComputeIndices(b.voltage_pu.by_order, internal::kNegligibleVoltagePu);
+  }
+  for (BranchResult& b : result.branches) {
+    b.indices = internal::ComputeIndices(b.current_a.by_order, internal::kNegligibleCurrentA);
+  }
+}
+
 }  // namespace
 
 const std::vector<std::string>& StandardCautions() {
@@ -165,28 +233,26 @@ StudyResult RunStudy(const Plant& plant, const StudyOptions& options) {
   StudyResult result;
   result.study = plant.study;
   result.cautions = StandardCautions();
-  if (plant.study.summation != Summation::kVector) {
-    // Per-source summation lands with the limit assessment; say so rather than label vector
-    // results as something else.
-    result.warnings.push_back(fmt::format(
-        "study.summation '{}' is not available in this version; the results use vector summation "
-        "(the network solve itself)", ToString(plant.study.summation)));
-    result.study.summation = Summation::kVector;
-  }
 
   // Fundamental operating point, with each drive group's spectrum.
   const internal::OperatingPoint op = internal::SolveOperatingPoint(plant, net, options.threads, result.warnings);
   const internal::LoadFlowResult& flow = op.flow;
   result.load_flow_iterations = flow.iterations;
 
-  // Injections: drive groups (drawn current, so injected with a minus sign) and supply backgrounds.
-  std::vector<std::vector<Injection>> injections(static_cast<std::size_t>(max_order) + 1);
+  // Sources: drive groups (drawn current, so injected with a minus sign) and supply backgrounds.
+  const std::size_t orders = static_cast<std::size_t>(max_order) + 1;
+  std::vector<HarmonicSource> sources;
   for (std::size_t k = 0; k < plant.drives.size(); ++k) {
     const int bus = net.BusIndex(plant.drives[k].bus);
-    for (int h = 2; h <= max_order; ++h) injections[h].push_back({bus, -op.drives[k].current[h]});
+    HarmonicSource& source = sources.emplace_back();
+    source.injections.resize(orders);
+    for (int h = 2; h <= max_order; ++h) source.injections[h].push_back({bus, -op.drives[k].current[h]});
   }
   for (const auto& s : net.sources()) {
-    if (!s.supply) continue;
+    if (!s.supply || s.supply->background.empty()) continue;
+    HarmonicSource& source = sources.emplace_back();
+    source.background_of = s.supply;
+    source.injections.resize(orders);
     for (const HarmonicEntry& e : s.supply->background) {
       if (e.order > max_order) continue;
       if (e.order % 3 == 0) {
@@ -194,8 +260,14 @@ StudyResult RunStudy(const Plant& plant, const StudyOptions& options) {
                                               "(zero sequence, format 1)", s.name(), e.order));
         continue;
       }
-      injections[e.order].push_back(
+      source.injections[e.order].push_back(
           {s.bus, BackgroundEmf(*s.supply, e.order) / net.SourceImpedance(s, e.order)});
+    }
+  }
+  std::vector<std::vector<Injection>> injections(orders);
+  for (const HarmonicSource& source : sources) {
+    for (int h = 2; h <= max_order; ++h) {
+      injections[h].insert(injections[h].end(), source.injections[h].begin(), source.injections[h].end());
     }
   }
 
@@ -217,11 +289,8 @@ StudyResult RunStudy(const Plant& plant, const StudyOptions& options) {
     r.kind = br.transformer ? "transformer" : "cable";
     r.from = net.bus(br.from).name;
     r.to = net.bus(br.to).name;
-    std::vector<Complex> current(static_cast<std::size_t>(max_order) + 1);
-    for (int h = 1; h <= max_order; ++h) {
-      const internal::BranchStamp st = net.Stamp(br, h, internal::SequenceOf(h));
-      current[h] = st.yff * sol.at(h, br.from) + st.yft * sol.at(h, br.to);
-    }
+    std::vector<Complex> current(orders);
+    for (int h = 1; h <= max_order; ++h) current[h] = BranchCurrentAt(net, br, sol, h);
     r.current_a = Scaled(current, net.BaseAmps(br.from));
     r.indices = internal::ComputeIndices(r.current_a.by_order, internal::kNegligibleCurrentA,
                                            /*with_peak=*/false);  // not reported for branches
@@ -251,7 +320,15 @@ StudyResult RunStudy(const Plant& plant, const StudyOptions& options) {
     }
     result.drives.push_back(std::move(r));
   }
-  result.pcc = AssessPcc(plant, net, sol, result.warnings);
+  const int pcc_bus = net.BusIndex(PccBus(plant));
+  const PccMeter meter(net, pcc_bus);
+  std::vector<Complex> pcc_current(orders);
+  for (int h = 1; h <= max_order; ++h) pcc_current[h] = meter.At(sol, h);
+  result.pcc.current_a = Scaled(pcc_current, net.BaseAmps(pcc_bus));
+  if (plant.study.summation != Summation::kVector) {
+    SumBySource(plant.study.summation, net, meter, pcc_bus, sources, options.threads, result);
+  }
+  result.pcc = AssessPcc(plant, net, std::move(result.pcc.current_a), result.warnings);
   // Capacitor duty, transformer derating and resonance screening (docs/resonance.md).
   result.capacitors = internal::CapacitorDuties(plant, result.buses);
   result.transformers = internal::TransformerDeratings(plant, result.branches);

@@ -20,7 +20,7 @@ using namespace overtone::internal;
 namespace {
 
 LimitProfile Builtin(const std::string& name) {
-  return ReadLimitProfile(std::string(OVERTONE_SOURCE_DIR) + "/data/limits/" + name + ".yaml");
+  return ReadLimitProfile(std::string(OVERTONE_SOURCE_DIR) + "/src/limits/" + name + ".yaml");
 }
 
 // Every order 2..50 against `expected(h)`; empty expected = no limit at that order.
@@ -190,10 +190,10 @@ TEST_CASE("A user profile of the same shape is read; errors name file, line and 
       "    - {thd: eight, orders: [{order: 5, percent: 2.5}, {order: 5, percent: 2.0}], colour: red}\n");
   const std::string errors = ErrorsOf(bad);
   CHECK_THAT(errors, Catch::Contains(bad + ":4:15: error: `applies_at` must be `pcc` or `every-bus`"));
-  CHECK_THAT(errors, Catch::Contains(bad + ":6:44: error: `from` must not exceed `to`"));
-  CHECK_THAT(errors, Catch::Contains(bad + ":7:12: error: `thd` must be a number"));
+  CHECK_THAT(errors, Catch::Contains(bad + ":6:42: error: `from` must not exceed `to`"));
+  CHECK_THAT(errors, Catch::Contains(bad + ":7:13: error: `thd` must be a number"));
   CHECK_THAT(errors, Catch::Contains(":7:55: error: order 5 is given a limit twice"));
-  CHECK_THAT(errors, Catch::Contains(":7:86: error: unknown key `colour`"));
+  CHECK_THAT(errors, Catch::Contains(":7:82: error: unknown key `colour`"));
 
   const std::string current = WriteTemp("bad-current.yaml",
       "overtone_limits: 1\n"
@@ -205,8 +205,8 @@ TEST_CASE("A user profile of the same shape is read; errors name file, line and 
       "    - ranges: [[2, 10], [9, 16]]\n"
       "      rows: [{isc_il_below: 20, odd: [4.0], tdd: 5.0}, {isc_il_below: 10, odd: [1, 2], tdd: 5}]\n");
   const std::string current_errors = ErrorsOf(current);
-  CHECK_THAT(current_errors, Catch::Contains(":7:28: error: ranges must rise without overlapping"));
-  CHECK_THAT(current_errors, Catch::Contains(":8:66: error: `isc_il_below` must rise"));
+  CHECK_THAT(current_errors, Catch::Contains(":7:25: error: ranges must rise without overlapping"));
+  CHECK_THAT(current_errors, Catch::Contains(":8:71: error: `isc_il_below` must rise"));
   CHECK_THAT(ErrorsOf(WriteTemp("syntax.yaml", "name: [\n")), Catch::Contains("syntax.yaml:2:1: error:"));
   CHECK_THAT(ErrorsOf("/nonexistent/profile.yaml"), Catch::Contains("cannot read"));
 }

@@ -59,6 +59,8 @@ run broken 2 "$BIN" study "$PLANTS/bad/limits-broken.yaml" --json "$WORK/broken.
 grep -q 'broken-profile.yaml:7:13: error: `thd` must be a number' "$WORK/broken.err" ||
   fail "broken: no located error ($(cat "$WORK/broken.err"))"
 [ ! -e "$WORK/broken.json" ] || fail "broken: JSON written"
+run broken_check 2 "$BIN" check "$PLANTS/bad/limits-broken.yaml"
+grep -q 'broken-profile.yaml:7:13: error:' "$WORK/broken_check.err" || fail "broken: check does not read the profile"
 
 if [ "$failures" -ne 0 ]; then
   echo "$failures check(s) failed" >&2

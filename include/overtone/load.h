@@ -16,6 +16,10 @@ Plant LoadPlant(const std::string& path);
 // The same for text held in memory; `file_name` is used in messages and to resolve `extends`.
 Plant LoadPlantFromString(const std::string& text, const std::string& file_name);
 
+// Reads the limit profile the plant names (`study.limits`: built-in or a file) and throws
+// InputError with file, line and column for its problems; RunStudy does the same first.
+void CheckLimitProfile(const Plant& plant);
+
 }  // namespace overtone
 
 #endif  // OVERTONE_PUBLIC_LOAD_H_

@@ -25,6 +25,10 @@ void WriteDriveJson(const DriveResult& drive, std::ostream& out);
 // buses.csv, bus_harmonics.csv, drives.csv and branches.csv in `dir` (created if needed).
 void WriteStudyCsv(const StudyResult& result, const std::string& dir);
 
+// `overtone report`: report.md, a self-contained report.html (inline SVG), thdv.svg,
+// pcc_current.svg and the CSV tables of WriteStudyCsv in `dir` (created if needed).
+void WriteReport(const Plant& plant, const StudyResult& result, const std::string& dir);
+
 // Writes a file through a temporary name in the same folder and renames it into place, so an
 // interrupted run leaves any previous file intact. Throws std::runtime_error on failure.
 void WriteFileAtomically(const std::string& path, const std::function<void(std::ostream&)>& write);

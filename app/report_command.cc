@@ -1,0 +1,39 @@
+// app/report_command.cc — `overtone report PLANT -o DIR`: the study written as a report.
+#include <iostream>
+#include <memory>
+
+#include "commands.h"
+#include "overtone/load.h"
+#include "overtone/report.h"
+#include "overtone/study.h"
+
+namespace overtone::app {
+
+Command AddReportCommand(CLI::App& app) {
+  struct Args {
+    std::string plant, dir;
+    int threads = 0;
+    bool fail_on_violation = false;
+  };
+  auto args = std::make_shared<Args>();
+  CLI::App* cmd = app.add_subcommand(
+      "report", "Run the study and write report.md, report.html (inline charts) and CSV tables");
+  cmd->add_option("PLANT", args->plant, "plant file (YAML, format 1)")->required();
+  cmd->add_option("-o,--out", args->dir, "output directory (created if needed)")->required()->type_name("DIR");
+  cmd->add_option("--threads", args->threads, "worker threads for the harmonic orders (0 = all cores)")
+      ->check(CLI::Range(0, 1024));
+  cmd->add_flag("--fail-on-violation", args->fail_on_violation,
+                "exit with status 3 when the limit assessment finds violations (the report is written)");
+  return {cmd, [args]() {
+    const Plant plant = LoadPlant(args->plant);
+    StudyOptions options;
+    options.threads = args->threads;
+    const StudyResult result = RunStudy(plant, options);
+    WriteReport(plant, result, args->dir);
+    std::cout << "wrote " << args->dir << "/report.md and report.html\n";
+    const bool violated = !result.assessment.violations.empty();
+    return args->fail_on_violation && violated ? kExitViolation : kExitOk;
+  }};
+}
+
+}  // namespace overtone::app
