@@ -18,7 +18,13 @@ install_missing() {
   DEBIAN_FRONTEND=noninteractive $sudo apt-get install -y -qq "${missing[@]}"
 }
 
-build() {
+# configure [CMAKE ARGS...]: Release unless the arguments say otherwise.
+configure() {
   cmake -S "$ROOT" -B "$BUILD" -DCMAKE_BUILD_TYPE=Release "$@" >/dev/null
+}
+
+# build [CMAKE ARGS...]: configure, then build every target.
+build() {
+  configure "$@"
   cmake --build "$BUILD" -j "$(nproc)"
 }
