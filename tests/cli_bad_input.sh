@@ -7,20 +7,10 @@
 # stderr (at the place the file's `# expect:` line names), and OUT not created; then two
 # generated adversarial files.
 set -u
-if [ $# -ne 2 ]; then
-  echo "usage: $0 OVERTONE_BINARY SOURCE_DIR" >&2
-  exit 2
-fi
+source "$(dirname "$0")/cli_lib.sh"
+cli_start "OVERTONE_BINARY SOURCE_DIR" "$@"
 BIN=$1
 SRC=$2
-WORK=$(mktemp -d)
-trap 'rm -rf "$WORK"' EXIT
-failures=0
-
-fail() {
-  echo "FAIL: $*" >&2
-  failures=$((failures + 1))
-}
 
 # expect_input_error NAME PLACE OUT COMMAND...: COMMAND must exit 2, print PLACE: error: on
 # stderr, and leave OUT (if not empty) uncreated.

@@ -6,20 +6,10 @@
 # thread counts (DEVELOPERS.md "Results independent of the thread count"); a plant whose load flow
 # collapses exits with status 4 naming the bus, and leaves no output (PLANT-FORMAT.md "Exit status").
 set -u
-if [ $# -ne 2 ]; then
-  echo "usage: $0 OVERTONE_BINARY SOURCE_DIR" >&2
-  exit 2
-fi
+source "$(dirname "$0")/cli_lib.sh"
+cli_start "OVERTONE_BINARY SOURCE_DIR" "$@"
 BIN=$1
 SRC=$2
-WORK=$(mktemp -d)
-trap 'rm -rf "$WORK"' EXIT
-failures=0
-
-fail() {
-  echo "FAIL: $*" >&2
-  failures=$((failures + 1))
-}
 
 DEMO=$SRC/cases/demo/plant.yaml
 for run in first second; do

@@ -5,20 +5,10 @@
 #
 # Usage: limits_cli.sh OVERTONE_BINARY SOURCE_DIR
 set -u
-if [ $# -ne 2 ]; then
-  echo "usage: $0 OVERTONE_BINARY SOURCE_DIR" >&2
-  exit 2
-fi
+source "$(dirname "$0")/cli_lib.sh"
+cli_start "OVERTONE_BINARY SOURCE_DIR" "$@"
 BIN=$1
 PLANTS=$2/tests/plants
-WORK=$(mktemp -d)
-trap 'rm -rf "$WORK"' EXIT
-failures=0
-
-fail() {
-  echo "FAIL: $*" >&2
-  failures=$((failures + 1))
-}
 
 run() {
   local name=$1 expected=$2 status=0

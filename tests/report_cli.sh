@@ -5,19 +5,10 @@
 #
 # Usage: report_cli.sh OVERTONE_BINARY SOURCE_DIR
 set -u
-if [ $# -ne 2 ]; then
-  echo "usage: $0 OVERTONE_BINARY SOURCE_DIR" >&2
-  exit 2
-fi
+source "$(dirname "$0")/cli_lib.sh"
+cli_start "OVERTONE_BINARY SOURCE_DIR" "$@"
 BIN=$1
 SRC=$2
-WORK=$(mktemp -d)
-trap 'rm -rf "$WORK"' EXIT
-failures=0
-fail() {
-  echo "FAIL: $*" >&2
-  failures=$((failures + 1))
-}
 
 "$BIN" report "$SRC/cases/demo/plant.yaml" -o "$WORK/out" >"$WORK/run.out" 2>"$WORK/run.err" ||
   fail "report: exit status $? ($(head -c 300 "$WORK/run.err"))"

@@ -7,20 +7,10 @@
 # "Conventions": a table order h sits at angle(table) + h angle(I1)) and from the bridge model's
 # sampling grid (src/bridge.cc: 1440 samples per period, a 0.25 degree grid).
 set -u
-if [ $# -ne 2 ]; then
-  echo "usage: $0 OVERTONE_BINARY SOURCE_DIR" >&2
-  exit 2
-fi
+source "$(dirname "$0")/cli_lib.sh"
+cli_start "OVERTONE_BINARY SOURCE_DIR" "$@"
 BIN=$1
 PLANT=$2/tests/plants/spectrum-bench.yaml
-WORK=$(mktemp -d)
-trap 'rm -rf "$WORK"' EXIT
-failures=0
-
-fail() {
-  echo "FAIL: $*" >&2
-  failures=$((failures + 1))
-}
 
 # run NAME EXPECTED_STATUS COMMAND...: stdout and stderr into $WORK/NAME.out and .err.
 run() {

@@ -8,19 +8,10 @@
 # recomputed here from the cases' JSON with numpy (numpy.percentile's default linear rule); bad
 # sweep files and options exit 2 with file:line:col and write nothing (PLANT-FORMAT.md "Errors").
 set -u
-if [ $# -ne 2 ]; then
-  echo "usage: $0 OVERTONE_BINARY SOURCE_DIR" >&2
-  exit 2
-fi
+source "$(dirname "$0")/cli_lib.sh"
+cli_start "OVERTONE_BINARY SOURCE_DIR" "$@"
 BIN=$1
 SWEEP=$2/cases/demo/sweep.yaml
-WORK=$(mktemp -d)
-trap 'rm -rf "$WORK"' EXIT
-failures=0
-fail() {
-  echo "FAIL: $*" >&2
-  failures=$((failures + 1))
-}
 run() {  # run NAME EXPECTED_STATUS COMMAND...
   local name=$1 expected=$2 status=0
   shift 2

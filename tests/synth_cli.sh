@@ -9,19 +9,10 @@
 # generator sizes transformers and feeders from their load for 0.95..1.05 pu; 0.9..1.1 pu is a
 # common steady-state service range, checked here with a margin).
 set -u
-if [ $# -ne 2 ]; then
-  echo "usage: $0 OVERTONE_BINARY SYNTH_BINARY" >&2
-  exit 2
-fi
+source "$(dirname "$0")/cli_lib.sh"
+cli_start "OVERTONE_BINARY SYNTH_BINARY" "$@"
 BIN=$1
 SYNTH=$2
-WORK=$(mktemp -d)
-trap 'rm -rf "$WORK"' EXIT
-failures=0
-fail() {
-  echo "FAIL: $*" >&2
-  failures=$((failures + 1))
-}
 
 "$SYNTH" --buses 300 --drives 60 --seed 11 --kinds 7 -o "$WORK/a.yaml" || fail "synth seed 11 exit $?"
 "$SYNTH" --buses 300 --drives 60 --seed 11 --kinds 7 -o "$WORK/b.yaml" || fail "synth again exit $?"

@@ -1,0 +1,21 @@
+# tests/cli_lib.sh — shared by the CLI test scripts: argument check, a scratch folder, failures.
+#
+# cli_start "ARG1 ARG2" "$@": exits 2 with a usage line unless exactly two arguments are given;
+# then WORK is a scratch folder removed on exit, and `fail MESSAGE` records a failure that the
+# script reports through $failures.
+cli_start() {
+  local usage=$1
+  shift
+  if [ $# -ne 2 ]; then
+    echo "usage: $(basename "$0") $usage" >&2
+    exit 2
+  fi
+  WORK=$(mktemp -d)
+  trap 'rm -rf "$WORK"' EXIT
+  failures=0
+}
+
+fail() {
+  echo "FAIL: $*" >&2
+  failures=$((failures + 1))
+}
