@@ -19,3 +19,13 @@ fail() {
   echo "FAIL: $*" >&2
   failures=$((failures + 1))
 }
+
+# run NAME EXPECTED_STATUS COMMAND...: stdout and stderr into $WORK/NAME.out and .err; a
+# different exit status is a failure.
+run() {
+  local name=$1 expected=$2 status=0
+  shift 2
+  "$@" >"$WORK/$name.out" 2>"$WORK/$name.err" || status=$?
+  [ "$status" -eq "$expected" ] ||
+    fail "$name: exit status $status, expected $expected ($(head -c 400 "$WORK/$name.err"))"
+}

@@ -10,14 +10,6 @@ cli_start "OVERTONE_BINARY SOURCE_DIR" "$@"
 BIN=$1
 PLANTS=$2/tests/plants
 
-run() {
-  local name=$1 expected=$2 status=0
-  shift 2
-  "$@" >"$WORK/$name.out" 2>"$WORK/$name.err" || status=$?
-  [ "$status" -eq "$expected" ] ||
-    fail "$name: exit status $status, expected $expected ($(head -c 300 "$WORK/$name.err"))"
-}
-
 # 1. The bench passes IEEE 519 (THDv 2.8 % < 8 %): exit 0 even with --fail-on-violation.
 run pass 0 "$BIN" study "$PLANTS/spectrum-bench.yaml" --no-scan --fail-on-violation
 grep -q '^Limits (IEEE Std 519-2014, profile ieee519)$' "$WORK/pass.out" || fail "pass: no Limits heading"

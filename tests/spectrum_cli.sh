@@ -12,15 +12,6 @@ cli_start "OVERTONE_BINARY SOURCE_DIR" "$@"
 BIN=$1
 PLANT=$2/tests/plants/spectrum-bench.yaml
 
-# run NAME EXPECTED_STATUS COMMAND...: stdout and stderr into $WORK/NAME.out and .err.
-run() {
-  local name=$1 expected=$2 status=0
-  shift 2
-  "$@" >"$WORK/$name.out" 2>"$WORK/$name.err" || status=$?
-  [ "$status" -eq "$expected" ] ||
-    fail "$name: exit status $status, expected $expected ($(head -c 300 "$WORK/$name.err"))"
-}
-
 # 1. A bridge group: table, JSON, one period of CSV, a chart.
 run bridge 0 "$BIN" spectrum "$PLANT" --drive BENCH-VSD --json "$WORK/vsd.json" \
   --waveform "$WORK/vsd.csv" --svg "$WORK/vsd.svg"

@@ -12,13 +12,6 @@ source "$(dirname "$0")/cli_lib.sh"
 cli_start "OVERTONE_BINARY SOURCE_DIR" "$@"
 BIN=$1
 SWEEP=$2/cases/demo/sweep.yaml
-run() {  # run NAME EXPECTED_STATUS COMMAND...
-  local name=$1 expected=$2 status=0
-  shift 2
-  "$@" >"$WORK/$name.out" 2>"$WORK/$name.err" || status=$?
-  [ "$status" -eq "$expected" ] ||
-    fail "$name: exit status $status, expected $expected ($(head -c 400 "$WORK/$name.err"))"
-}
 CASES="loading-100 loading-60 loading-80 mc-0001 mc-0002 mc-0003 mc-0004 pfc-b-off-new-line"
 
 # 1. The whole sweep: a folder per case, study.json and the marker.
