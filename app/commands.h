@@ -26,6 +26,7 @@ Command AddStudyCommand(CLI::App& app);
 Command AddScanCommand(CLI::App& app);
 Command AddSpectrumCommand(CLI::App& app);
 Command AddReportCommand(CLI::App& app);
+Command AddCompareCommand(CLI::App& app);
 Command AddSweepCommand(CLI::App& app);
 
 }  // namespace overtone::app

@@ -15,7 +15,8 @@ int main(int argc, char** argv) {
   app.require_subcommand(1);
   const std::vector<Command> commands = {AddCheckCommand(app), AddStudyCommand(app),
                                          AddScanCommand(app), AddSpectrumCommand(app),
-                                         AddSweepCommand(app), AddReportCommand(app)};
+                                         AddSweepCommand(app), AddReportCommand(app),
+                                         AddCompareCommand(app)};
 
   try {
     app.parse(argc, argv);

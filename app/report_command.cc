@@ -1,6 +1,7 @@
 // app/report_command.cc — `overtone report PLANT -o DIR`: the study written as a report.
 #include <iostream>
 #include <memory>
+#include <optional>
 
 #include "commands.h"
 #include "overtone/load.h"
@@ -11,7 +12,7 @@ namespace overtone::app {
 
 Command AddReportCommand(CLI::App& app) {
   struct Args {
-    std::string plant, dir;
+    std::string plant, dir, against;
     int threads = 0;
     bool fail_on_violation = false;
   };
@@ -20,18 +21,24 @@ Command AddReportCommand(CLI::App& app) {
       "report", "Run the study and write report.md, report.html (inline charts) and CSV tables");
   cmd->add_option("PLANT", args->plant, "plant file (YAML, format 1)")->required();
   cmd->add_option("-o,--out", args->dir, "output directory (created if needed)")->required()->type_name("DIR");
+  cmd->add_option("--against", args->against,
+                  "also run BASE and add a comparison with it (PLANT is the proposed case)")
+      ->type_name("BASE");
   cmd->add_option("--threads", args->threads, "worker threads for the harmonic orders (0 = all cores)")
       ->check(CLI::Range(0, 1024));
   cmd->add_flag("--fail-on-violation", args->fail_on_violation,
                 "exit with status 3 when the limit assessment finds violations (the report is written)");
   return {cmd, [args]() {
     const Plant plant = LoadPlant(args->plant);
+    const std::optional<Plant> base = args->against.empty() ? std::nullopt
+                                                             : std::optional<Plant>(LoadPlant(args->against));
     StudyOptions options;
     options.threads = args->threads;
-    const StudyResult result = RunStudy(plant, options);
-    WriteReport(plant, result, args->dir);
+    // Everything is computed before the first byte is written: a failure leaves no partial output.
+    const ReportInputs inputs = PrepareReport(plant, options, base ? &*base : nullptr);
+    WriteReport(inputs, args->dir);
     std::cout << "wrote " << args->dir << "/report.md and report.html\n";
-    const bool violated = !result.assessment.violations.empty();
+    const bool violated = !inputs.result.assessment.violations.empty();
     return args->fail_on_violation && violated ? kExitViolation : kExitOk;
   }};
 }

@@ -2,11 +2,16 @@
 #ifndef OVERTONE_INTERNAL_OUTPUT_COMMON_H_
 #define OVERTONE_INTERNAL_OUTPUT_COMMON_H_
 
+#include <cctype>
 #include <cmath>
 #include <numbers>
 #include <string>
 
+#include <optional>
+#include <vector>
+
 #include "json_writer.h"
+#include "overtone/scan.h"
 #include "overtone/study.h"
 
 namespace overtone::internal {
@@ -29,12 +34,42 @@ inline std::string XmlEscape(const std::string& s) {
   return out;
 }
 
+// A name made safe for a file name: letters, digits, '.', '_' and '-' kept, anything else '_'.
+inline std::string FileSafe(const std::string& name) {
+  std::string out;
+  for (char c : name) out += std::isalnum(static_cast<unsigned char>(c)) || c == '.' || c == '-' || c == '_' ? c : '_';
+  return out;
+}
+
 // RFC 4180 quoting for names that hold a comma, quote or line break.
 inline std::string CsvField(const std::string& s) {
   if (s.find_first_of(",\"\r\n") == std::string::npos) return s;
   std::string q = "\"";
   for (char c : s) q += c == '"' ? std::string("\"\"") : std::string(1, c);
   return q + '"';
+}
+
+// The verdict of a bus's voltage check in words; `check` nullptr when the bus was not checked.
+inline std::string BusVerdict(const BusLimitCheck* check) {
+  if (!check) return "not checked";
+  return check->pass ? "pass" : check->design_guide ? "over (design guide)" : "FAIL";
+}
+
+// The limit check of a bus by name, nullptr when the assessment has none.
+inline const BusLimitCheck* FindBusCheck(const Assessment& a, const std::string& bus) {
+  for (const BusLimitCheck& c : a.buses) {
+    if (c.bus == bus) return &c;
+  }
+  return nullptr;
+}
+
+// A word of terminal output, in ANSI colour when `colour`; the word itself carries the meaning,
+// so output without colour (a pipe, `--no-color`, black-and-white print) loses nothing.
+enum class Tone { kBad, kGood };
+inline std::string Marked(const std::string& word, Tone tone, bool colour) {
+  if (!colour) return word;
+  // 256-colour codes near Okabe-Ito vermillion and blue, bold: readable for common colour blindness.
+  return (tone == Tone::kBad ? "\x1b[1;38;5;166m" : "\x1b[1;38;5;32m") + word + "\x1b[0m";
 }
 
 // The fields of a resonance peak, as in the format page's `resonances` and scan `peaks`.
@@ -44,6 +79,43 @@ inline void WritePeakFields(JsonWriter& j, const ResonancePeak& p) {
   if (p.near_order > 0) j.Field("near_order", p.near_order);
   j.Field("risk", ToString(p.risk));
 }
+
+// A table of the report, rendered to both Markdown and HTML.
+struct ReportTable {
+  std::vector<std::string> header;
+  std::vector<std::vector<std::string>> rows;
+  std::string caption = "";  // shown above the table; empty for none
+};
+
+// A chart of the report: inline in the HTML, a file beside report.md.
+struct ReportChart {
+  std::string svg;
+  std::string file;  // e.g. "thdv.svg"
+};
+
+// A titled part of the report: paragraphs, then tables, then charts (src/output_report.cc).
+struct ReportSection {
+  std::string title;
+  std::vector<std::string> paragraphs;
+  std::vector<ReportTable> tables;
+  std::vector<ReportChart> charts;
+};
+
+// A bar chart: one bar per label, each with an optional limit mark (src/output_svg.cc).
+struct BarChartData {
+  std::string id;  // unique within one page: names the chart's hatch pattern
+  std::string title;
+  std::string unit;
+  std::vector<std::string> labels;
+  std::vector<double> values;
+  std::vector<std::optional<double>> limits;  // one per bar, or empty for none
+};
+std::string BarChartSvg(const BarChartData& chart);
+
+// The frequency-scan chart of one monitored bus (what `overtone scan --svg` writes for it), and
+// the file name it is written under; empty when no variant has a curve there.
+std::string ScanChartSvg(const std::vector<ScanResult>& variants, const std::string& bus);
+std::string ScanChartFileName(const std::string& bus);
 
 }  // namespace overtone::internal
 

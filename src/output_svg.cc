@@ -1,13 +1,16 @@
-// src/output_svg.cc — hand-written SVG charts of frequency scans, one per monitored bus.
+// src/output_svg.cc — hand-written SVG charts: frequency scans (one per monitored bus) and the
+// report's bar charts (THDv per bus, pcc current, drive spectra).
 //
-// Readable in black and white (each curve has its own dash pattern) and in colour for the common
-// forms of colour blindness (the Okabe-Ito palette); |Z| on a log scale so that the curve without
-// capacitors and a sharp peak fit on one chart.
+// Readable in black and white (each curve has its own dash pattern; bars over their limit are
+// hatched and say "over") and in colour for the common forms of colour blindness (the Okabe-Ito
+// palette); |Z| on a log scale so that the curve without capacitors and a sharp peak fit on one
+// chart.
 #include <algorithm>
 #include <cctype>
 #include <cmath>
 #include <filesystem>
 #include <set>
+#include <sstream>
 
 #include <fmt/format.h>
 #include <fmt/ostream.h>
@@ -21,7 +24,7 @@ namespace {
 
 using internal::XmlEscape;
 
-constexpr double kWidth = 760, kPlotLeft = 78, kPlotRight = 736, kPlotTop = 52, kPlotBottom = 352;
+constexpr double kWidth = 760, kPlotLeft = 78, kPlotRight = 736, kPlotTop = 64, kPlotBottom = 352;  // top: room for the subtitle and the order labels
 constexpr double kLegendTop = 412, kLegendRow = 18;
 constexpr int kMaxDecades = 6;  // lower curves are clipped this far below the highest decade
 
@@ -42,12 +45,7 @@ struct Curve {
   Style style;
 };
 
-// Letters, digits, '.', '_' and '-' kept; anything else becomes '_'.
-std::string FileStem(const std::string& bus) {
-  std::string stem = "scan_";
-  for (char c : bus) stem += std::isalnum(static_cast<unsigned char>(c)) || c == '.' || c == '-' || c == '_' ? c : '_';
-  return stem;
-}
+std::string FileStem(const std::string& bus) { return "scan_" + internal::FileSafe(bus); }
 
 // The curves of one bus: per variant its worst configuration, its present state and its curve
 // without capacitors and filters (as many as there are styles).
@@ -178,6 +176,98 @@ void WriteChart(std::ostream& out, const std::string& bus, const std::vector<Cur
 
 }  // namespace
 
+namespace internal {
+
+// Vertical bars with an optional dashed limit mark across each bar's slot.
+std::string BarChartSvg(const BarChartData& c) {
+  constexpr double width = 760, left = 64, right = 740, top = 44, bottom = 262;
+  const auto limit = [&](std::size_t i) { return i < c.limits.size() ? c.limits[i] : std::nullopt; };
+  double top_value = 1e-9;
+  bool any_limit = false, any_over = false;
+  for (std::size_t i = 0; i < c.values.size(); ++i) {
+    top_value = std::max({top_value, c.values[i], limit(i).value_or(0.0)});
+    any_limit = any_limit || limit(i).has_value();
+    any_over = any_over || (limit(i) && c.values[i] > *limit(i));
+  }
+  // Round ticks: 1, 2, 2.5 or 5 times a power of ten, four or five of them.
+  const double raw = top_value * 1.1 / 4, decade = std::pow(10.0, std::floor(std::log10(raw)));
+  double tick = 10 * decade;
+  for (double m : {5.0, 2.5, 2.0, 1.0}) {
+    if (m * decade >= raw) tick = m * decade;
+  }
+  const int ticks = static_cast<int>(std::ceil(top_value * 1.1 / tick));
+  top_value = ticks * tick;
+  const double slot = (right - left) / std::max<std::size_t>(1, c.values.size());
+  const auto y = [&](double v) { return bottom - (bottom - top) * v / top_value; };
+  const std::string hatch = "over-" + c.id;
+  const int height = any_limit || any_over ? 340 : 314;  // the legend row only when it has marks
+  std::string s = fmt::format(
+      "<svg xmlns=\"http://www.w3.org/2000/svg\" width=\"{0}\" height=\"{7}\" viewBox=\"0 0 {0} {7}\" "
+      "font-family=\"Helvetica, Arial, sans-serif\" font-size=\"11\" role=\"img\" aria-label=\"{1}\">\n"
+      "<defs><pattern id=\"{6}\" width=\"6\" height=\"6\" patternUnits=\"userSpaceOnUse\" "
+      "patternTransform=\"rotate(45)\"><rect width=\"6\" height=\"6\" fill=\"#D55E00\"/>"
+      "<line x1=\"0\" y1=\"0\" x2=\"0\" y2=\"6\" stroke=\"#000\" stroke-width=\"2\"/></pattern></defs>\n"
+      "<rect width=\"100%\" height=\"100%\" fill=\"#ffffff\"/>\n"
+      "<text x=\"{2}\" y=\"22\" font-size=\"14\" font-weight=\"bold\">{1}</text>\n",
+      width, internal::XmlEscape(c.title), left, top, bottom, right, hatch, height);
+  for (int k = 0; k <= ticks; ++k) {
+    const double v = tick * k;
+    s += fmt::format("<line x1=\"{0}\" y1=\"{1:.1f}\" x2=\"{2}\" y2=\"{1:.1f}\" stroke=\"#dddddd\"/>"
+                     "<text x=\"{3}\" y=\"{4:.1f}\" text-anchor=\"end\">{5:g}</text>\n",
+                     left, y(v), right, left - 4, y(v) + 4, v);
+  }
+  s += fmt::format("<line x1=\"{0}\" y1=\"{1}\" x2=\"{0}\" y2=\"{2}\" stroke=\"#000\"/>"
+                   "<line x1=\"{0}\" y1=\"{2}\" x2=\"{3}\" y2=\"{2}\" stroke=\"#000\"/>\n",
+                   left, top, bottom, right);
+  s += fmt::format("<text transform=\"translate(16 {}) rotate(-90)\" text-anchor=\"middle\">{}</text>\n",
+                   (top + bottom) / 2, internal::XmlEscape(c.unit));
+  for (std::size_t i = 0; i < c.values.size(); ++i) {
+    const double x = left + slot * i + slot * 0.15, w = slot * 0.7;
+    const bool over = limit(i) && c.values[i] > *limit(i);
+    s += fmt::format("<rect x=\"{:.1f}\" y=\"{:.1f}\" width=\"{:.1f}\" height=\"{:.1f}\" fill=\"{}\" "
+                     "stroke=\"#000\" stroke-width=\"0.5\"><title>{} {:.3g}{}</title></rect>\n",
+                     x, y(c.values[i]), w, bottom - y(c.values[i]), over ? "url(#" + hatch + ")" : "#56B4E9",
+                     internal::XmlEscape(c.labels[i]), c.values[i], over ? " (over its limit)" : "");
+    if (limit(i)) {
+      s += fmt::format("<line x1=\"{:.1f}\" y1=\"{:.1f}\" x2=\"{:.1f}\" y2=\"{:.1f}\" stroke=\"#000\" "
+                       "stroke-width=\"2\" stroke-dasharray=\"4 2\"/>\n", x - 2, y(*limit(i)), x + w + 2, y(*limit(i)));
+    }
+    if (over) {
+      s += fmt::format("<text x=\"{:.1f}\" y=\"{:.1f}\" text-anchor=\"middle\" font-weight=\"bold\">over</text>\n",
+                       x + w / 2, std::min(y(c.values[i]), y(*limit(i))) - 5);
+    }
+    if (c.values.size() <= 26 || i % 2 == 0) {
+      s += fmt::format("<text x=\"{0:.1f}\" y=\"{1}\" transform=\"rotate(-45 {0:.1f} {1})\" "
+                       "text-anchor=\"end\">{2}</text>\n", x + w / 2, bottom + 12, internal::XmlEscape(c.labels[i]));
+    }
+  }
+  // Legend: only the marks the chart uses.
+  double lx = left;
+  if (any_limit) {
+    s += fmt::format("<line x1=\"{0}\" y1=\"325\" x2=\"{1}\" y2=\"325\" stroke=\"#000\" stroke-width=\"2\" "
+                     "stroke-dasharray=\"4 2\"/><text x=\"{2}\" y=\"329\">limit</text>\n", lx, lx + 24, lx + 30);
+    lx += 80;
+  }
+  if (any_over) {
+    s += fmt::format("<rect x=\"{0}\" y=\"318\" width=\"14\" height=\"12\" fill=\"url(#{1})\" stroke=\"#000\" "
+                     "stroke-width=\"0.5\"/><text x=\"{2}\" y=\"329\">over its limit (hatched)</text>\n",
+                     lx, hatch, lx + 20);
+  }
+  return s + "</svg>\n";
+}
+
+std::string ScanChartSvg(const std::vector<ScanResult>& variants, const std::string& bus) {
+  const std::vector<Curve> curves = CurvesAt(variants, bus);
+  if (curves.empty()) return "";
+  std::ostringstream out;
+  WriteChart(out, bus, curves, variants.front().options);
+  return out.str();
+}
+
+std::string ScanChartFileName(const std::string& bus) { return FileStem(bus) + ".svg"; }
+
+}  // namespace internal
+
 void WriteScanSvg(const std::vector<ScanResult>& variants, const std::string& dir) {
   std::vector<std::string> buses;
   for (const ScanResult& r : variants) {
@@ -187,14 +277,13 @@ void WriteScanSvg(const std::vector<ScanResult>& variants, const std::string& di
   }
   std::set<std::string> used;
   for (const std::string& bus : buses) {
-    const std::vector<Curve> curves = CurvesAt(variants, bus);
-    if (curves.empty()) continue;
+    const std::string svg = internal::ScanChartSvg(variants, bus);
+    if (svg.empty()) continue;
     std::string stem = FileStem(bus);
     for (int n = 2; used.count(stem); ++n) stem = FileStem(bus) + "_" + std::to_string(n);
     used.insert(stem);
-    WriteFileAtomically((std::filesystem::path(dir) / (stem + ".svg")).string(), [&](std::ostream& out) {
-      WriteChart(out, bus, curves, variants.front().options);
-    });
+    WriteFileAtomically((std::filesystem::path(dir) / (stem + ".svg")).string(),
+                        [&](std::ostream& out) { out << svg; });
   }
 }
 

@@ -3,9 +3,13 @@
 #define OVERTONE_PUBLIC_REPORT_H_
 
 #include <functional>
+#include <optional>
 #include <ostream>
 #include <string>
+#include <vector>
 
+#include "overtone/compare.h"
+#include "overtone/scan.h"
 #include "overtone/study.h"
 
 namespace overtone {
@@ -25,9 +29,22 @@ void WriteDriveJson(const DriveResult& drive, std::ostream& out);
 // buses.csv, bus_harmonics.csv, drives.csv and branches.csv in `dir` (created if needed).
 void WriteStudyCsv(const StudyResult& result, const std::string& dir);
 
-// `overtone report`: report.md, a self-contained report.html (inline SVG), thdv.svg,
-// pcc_current.svg and the CSV tables of WriteStudyCsv in `dir` (created if needed).
-void WriteReport(const Plant& plant, const StudyResult& result, const std::string& dir);
+// Everything a report shows, computed before the first byte is written (docs/report.md).
+struct ReportInputs {
+  const Plant* plant = nullptr;
+  StudyResult result;
+  std::vector<StudyResult> other_summations;  // the same plant under the two other rules
+  std::vector<ScanResult> scans;              // the plant's frequency scan (one variant)
+  std::optional<Comparison> comparison;       // against a base case (`--against BASE`)
+};
+
+// Runs the study of `plant`, the same study under the two other summation rules, its frequency
+// scan and, when `base` is given, the base case's study and the comparison with it.
+ReportInputs PrepareReport(const Plant& plant, const StudyOptions& options, const Plant* base = nullptr);
+
+// `overtone report`: report.md, a self-contained report.html (inline SVG), each chart as an SVG
+// file and the CSV tables of WriteStudyCsv in `dir` (created if needed).
+void WriteReport(const ReportInputs& inputs, const std::string& dir);
 
 // Writes a file through a temporary name in the same folder and renames it into place, so an
 // interrupted run leaves any previous file intact. Throws std::runtime_error on failure.
