@@ -28,6 +28,8 @@ Command AddSpectrumCommand(CLI::App& app);
 Command AddReportCommand(CLI::App& app);
 Command AddCompareCommand(CLI::App& app);
 Command AddSweepCommand(CLI::App& app);
+Command AddHeadroomCommand(CLI::App& app);
+Command AddMitigateCommand(CLI::App& app);
 
 }  // namespace overtone::app
 

@@ -16,7 +16,8 @@ int main(int argc, char** argv) {
   const std::vector<Command> commands = {AddCheckCommand(app), AddStudyCommand(app),
                                          AddScanCommand(app), AddSpectrumCommand(app),
                                          AddSweepCommand(app), AddReportCommand(app),
-                                         AddCompareCommand(app)};
+                                         AddCompareCommand(app), AddHeadroomCommand(app),
+                                         AddMitigateCommand(app)};
 
   try {
     app.parse(argc, argv);

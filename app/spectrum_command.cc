@@ -4,7 +4,6 @@
 #include <fmt/ostream.h>
 
 #include <algorithm>
-#include <cctype>
 #include <cmath>
 #include <complex>
 #include <filesystem>
@@ -46,39 +45,16 @@ double RelativeAngle(const Spectrum& s, int h) {
   return Wrap((std::arg(s.at(h)) - h * std::arg(s.at(1))) * kDegPerRad);
 }
 
-// Levenshtein distance, ignoring letter case.
-std::size_t EditDistance(std::string_view a, std::string_view b) {
-  std::vector<std::size_t> row(b.size() + 1);
-  for (std::size_t j = 0; j <= b.size(); ++j) row[j] = j;
-  for (std::size_t i = 1; i <= a.size(); ++i) {
-    std::size_t diagonal = row[0];
-    row[0] = i;
-    for (std::size_t j = 1; j <= b.size(); ++j) {
-      const bool same = std::tolower(static_cast<unsigned char>(a[i - 1])) ==
-                        std::tolower(static_cast<unsigned char>(b[j - 1]));
-      const std::size_t next = std::min({row[j] + 1, row[j - 1] + 1, diagonal + (same ? 0 : 1)});
-      diagonal = row[j];
-      row[j] = next;
-    }
-  }
-  return row[b.size()];
-}
-
-// "; did you mean 'P-101'?" for a likely slip, else the list of names (or that there are none).
+// "; did you mean `P-101`?" for a likely slip, else the list of names (or that there are none).
 std::string Suggestion(const std::string& word, const std::vector<Drive>& drives) {
   if (drives.empty()) return "; the plant has no drive groups";
-  const Drive* best = nullptr;
-  std::size_t best_distance = 0;
-  for (const Drive& d : drives) {
-    const std::size_t distance = EditDistance(word, d.name);
-    if (!best || distance < best_distance) best = &d, best_distance = distance;
-  }
-  if (best_distance <= std::max<std::size_t>(2, word.size() / 3)) {
-    return fmt::format("; did you mean '{}'?", best->name);
-  }
-  std::string names;
-  for (const Drive& d : drives) names += (names.empty() ? "" : ", ") + d.name;
-  return "; the drive groups are: " + names;
+  std::vector<std::string> names;
+  for (const Drive& d : drives) names.push_back(d.name);
+  const std::string hint = SuggestName(word, names);
+  if (!hint.empty()) return hint;
+  std::string list;
+  for (const std::string& name : names) list += (list.empty() ? "" : ", ") + name;
+  return "; the drive groups are: " + list;
 }
 
 std::string Reactor(const ReactorSpec& r) {

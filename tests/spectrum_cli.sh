@@ -89,7 +89,7 @@ grep -q 'error: .*--svg' "$WORK/table_svg.err" || fail "table_svg: no clear erro
 
 # 4. An unknown drive: exit 2 with a did-you-mean, nothing written.
 run unknown 2 "$BIN" spectrum "$PLANT" --drive BENCH-VSDX --json "$WORK/unknown.json"
-grep -q "did you mean 'BENCH-VSD'" "$WORK/unknown.err" || fail "unknown: no did-you-mean"
+grep -q 'did you mean `BENCH-VSD`' "$WORK/unknown.err" || fail "unknown: no did-you-mean"
 [ ! -e "$WORK/unknown.json" ] || fail "unknown: $WORK/unknown.json was written"
 
 if [ "$failures" -ne 0 ]; then

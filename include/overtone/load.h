@@ -3,6 +3,8 @@
 #define OVERTONE_PUBLIC_LOAD_H_
 
 #include <string>
+#include <string_view>
+#include <vector>
 
 #include "overtone/plant.h"
 
@@ -19,6 +21,10 @@ Plant LoadPlantFromString(const std::string& text, const std::string& file_name)
 // Reads the limit profile the plant names (`study.limits`: built-in or a file) and throws
 // InputError with file, line and column for its problems; RunStudy does the same first.
 void CheckLimitProfile(const Plant& plant);
+
+// "; did you mean `P-101`?" when one of `names` is a likely slip for `word` (a few letters off,
+// or the only name `word` begins), else empty: the hint every "unknown name" message carries.
+std::string SuggestName(std::string_view word, const std::vector<std::string>& names);
 
 }  // namespace overtone
 

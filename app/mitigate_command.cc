@@ -1,0 +1,56 @@
+// app/mitigate_command.cc — `overtone mitigate`: standard mitigations, studied, ranked, written.
+#include <iostream>
+#include <memory>
+
+#include "commands.h"
+#include "overtone/load.h"
+#include "overtone/mitigate.h"
+#include "overtone/report.h"
+
+namespace overtone::app {
+
+Command AddMitigateCommand(CLI::App& app) {
+  struct Args {
+    std::string plant, json;
+    MitigateOptions options;
+  };
+  auto args = std::make_shared<Args>();
+  CLI::App* cmd = app.add_subcommand(
+      "mitigate",
+      "For a plant over its limits: study standard mitigations (reactors, multipulse or "
+      "active front ends, detuning, a tuned filter, capacitor steps), rank them and write "
+      "each as a plant file that extends the original");
+  cmd->add_option("PLANT", args->plant, "plant file (YAML, format 1)")->required();
+  cmd->add_option("-o,--out", args->options.out_dir,
+                  "folder for the option plant files (created if needed)")
+      ->type_name("DIR")
+      ->required();
+  cmd->add_option("--threads", args->options.threads,
+                  "worker threads of each study (0 = all cores)")
+      ->check(CLI::Range(0, 1024));
+  cmd->add_option("--json", args->json,
+                  "write the options as JSON to FILE ('-' for standard output)")
+      ->type_name("FILE");
+  return {cmd, [args]() {
+            const Plant plant = LoadPlant(args->plant);
+            const MitigationResult result = EvaluateMitigations(plant, args->options);
+            // Everything is computed before the first byte is written.
+            WriteMitigationPlantFiles(result, args->options.out_dir);
+            if (args->json == "-") {
+              WriteMitigationJson(result, std::cout);
+            } else if (!args->json.empty()) {
+              WriteFileAtomically(args->json,
+                                  [&](std::ostream& out) { WriteMitigationJson(result, out); });
+            }
+            if (args->json != "-") {
+              PrintMitigationTable(result, std::cout);
+              if (!result.options.empty()) {
+                std::cout << "\nwrote " << result.options.size() << " option plant files into "
+                          << args->options.out_dir << '\n';
+              }
+            }
+            return kExitOk;
+          }};
+}
+
+}  // namespace overtone::app

@@ -1,0 +1,51 @@
+// src/mapping_reader.cc — the keys of a YAML mapping, and a reader for one element.
+#include "mapping_reader.h"
+
+#include <algorithm>
+
+namespace overtone::internal {
+
+std::vector<Entry> MapEntries(const YAML::Node& map, const std::string& file,
+                              Diagnostics* diagnostics) {
+  std::vector<Entry> entries;
+  for (const auto& item : map) {
+    const YAML::Node& key = item.first;
+    if (!key.IsScalar()) {
+      diagnostics->Error(Locate(key, file), "a key must be a plain word such as `kv`");
+      continue;
+    }
+    const auto first = std::ranges::find(entries, key.Scalar(), &Entry::key);
+    if (first != entries.end()) {
+      diagnostics->Error(Locate(key, file), fmt::format("`{}` is given twice; first at line {}",
+                                                        key.Scalar(), first->KeyWhere().line));
+      continue;
+    }
+    entries.push_back({key.Scalar(), key, item.second, file});
+  }
+  return entries;
+}
+
+std::string_view ShapeOf(const YAML::Node& node) {
+  if (node.IsSequence()) return "a list";
+  if (node.IsMap()) return "a mapping";
+  if (node.IsNull()) return "empty";
+  return "a single value";
+}
+
+std::optional<MappingReader> ReadMapping(const YAML::Node& node, const std::string& file,
+                                         std::string_view noun, std::span<const KeySpec> specs,
+                                         Diagnostics* diagnostics) {
+  if (!node.IsMap()) {
+    diagnostics->Error(Locate(node, file),
+                       fmt::format("a {} must be a mapping of keys, not {}", noun, ShapeOf(node)));
+    return std::nullopt;
+  }
+  MappingReader reader(MapEntries(node, file, diagnostics), Locate(node, file), noun, specs,
+                       diagnostics);
+  reader.CheckKeys();
+  return reader;
+}
+
+// ---------------------------------------------------------------------------------------------
+
+}  // namespace overtone::internal

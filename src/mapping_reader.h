@@ -1,0 +1,270 @@
+// src/mapping_reader.h — reads the keys of one YAML mapping through its key table, with located messages (internal).
+#ifndef OVERTONE_INTERNAL_MAPPING_READER_H_
+#define OVERTONE_INTERNAL_MAPPING_READER_H_
+
+#include <cmath>
+#include <optional>
+#include <span>
+#include <string>
+#include <string_view>
+#include <vector>
+
+#include <fmt/format.h>
+#include <yaml-cpp/yaml.h>
+
+#include "load_diagnostics.h"
+#include "plant_keys.h"
+#include "units.h"
+
+namespace overtone::internal {
+
+// MappingReader: reads the keys of one mapping through its key table.
+
+// A YAML node that can be stored in containers. YAML::Node's own assignment writes into the node
+// it refers to (and so into the document), which would corrupt inherited content when elements
+// are replaced or removed; this handle's assignment re-points the handle instead.
+class NodeRef : public YAML::Node {
+ public:
+  NodeRef(const YAML::Node& node) : YAML::Node(node) {}  // NOLINT: implicit by design
+  NodeRef(const NodeRef& other) = default;
+  NodeRef& operator=(const NodeRef& other) {
+    reset(other);
+    return *this;
+  }
+};
+
+// One key of a mapping, its value, and the file it was written in.
+struct Entry {
+  std::string key;
+  NodeRef key_node;
+  NodeRef value;
+  std::string file;
+
+  SourceLocation KeyWhere() const { return Locate(key_node, file); }
+  // An empty value has no place of its own in yaml-cpp, so it takes its key's.
+  SourceLocation ValueWhere() const { return value.IsNull() ? KeyWhere() : Locate(value, file); }
+};
+
+// The keys of `map` in order; a key written twice is reported and its second value dropped.
+std::vector<Entry> MapEntries(const YAML::Node& map, const std::string& file,
+                              Diagnostics* diagnostics);
+
+// "a list", "a mapping", "empty" or "a single value", for messages.
+std::string_view ShapeOf(const YAML::Node& node);
+
+class MappingReader {
+ public:
+  // `noun` names the mapping in messages ("transformer"); its `name`, when readable, is added.
+  MappingReader(std::vector<Entry> entries, SourceLocation where, std::string_view noun,
+                std::span<const KeySpec> specs, Diagnostics* diagnostics)
+      : entries_(std::move(entries)),
+        where_(std::move(where)),
+        noun_(noun),
+        specs_(specs),
+        diagnostics_(diagnostics) {
+    const Entry* name = Find("name");
+    title_ = (name && name->value.IsScalar() && !name->value.Scalar().empty())
+                 ? fmt::format("{} `{}`", noun, name->value.Scalar())
+                 : std::string(noun);
+  }
+
+  const SourceLocation& where() const { return where_; }
+  std::string_view noun() const { return noun_; }
+  const std::string& title() const { return title_; }
+  bool Has(std::string_view key) const { return Find(key) != nullptr; }
+  std::string FileOf(std::string_view key) const {
+    const Entry* entry = Find(key);
+    return entry ? entry->file : where_.file;
+  }
+
+  // Reports unknown keys (with the nearest known key) and missing required keys.
+  void CheckKeys() {
+    std::vector<std::string_view> known;  // table order, each key once
+    for (const KeySpec& spec : specs_) {
+      if (std::ranges::find(known, spec.key) == known.end()) known.push_back(spec.key);
+    }
+    for (const Entry& entry : entries_) {
+      if (std::ranges::find(known, entry.key) != known.end()) continue;
+      std::string hint = DidYouMean(entry.key, known);
+      if (hint.empty()) hint = fmt::format("; known keys: {}", JoinNames(known));
+      diagnostics_->Error(entry.KeyWhere(),
+                          fmt::format("unknown key `{}` in {}{}", entry.key, title_, hint));
+    }
+    for (const KeySpec& spec : specs_) {
+      if (spec.need == kRequired && !Has(spec.key)) {
+        diagnostics_->Error(where_, fmt::format("{} is missing `{}`", title_, spec.key));
+      }
+    }
+  }
+
+  // Reports `message` at the value of `key` (at the mapping when the key is absent).
+  void Error(std::string_view key, std::string message) {
+    const Entry* entry = Find(key);
+    diagnostics_->Error(entry ? entry->ValueWhere() : where_, std::move(message));
+  }
+
+  // A single non-empty value as written; nothing when absent (or bad, which is reported).
+  std::optional<std::string> Text(std::string_view key) {
+    const Entry* entry = Find(key);
+    if (!entry) return std::nullopt;
+    if (!entry->value.IsScalar()) {
+      Error(key, entry->value.IsNull() ? fmt::format("`{}` has no value", key)
+                                       : fmt::format("`{}` must be a single value, not {}", key,
+                                                     ShapeOf(entry->value)));
+      return std::nullopt;
+    }
+    const std::string& text = entry->value.Scalar();
+    if (text.find_first_not_of(" \t") == std::string::npos) {
+      Error(key, fmt::format("`{}` is empty", key));
+      return std::nullopt;
+    }
+    return text;
+  }
+
+  // A quantity in one of the kinds the table gives this key, checked against that kind's range.
+  std::optional<Quantity> QuantityOf(std::string_view key) {
+    RequireType(key, ValueType::kQuantity, ValueType::kInteger);
+    const std::optional<std::string> text = Text(key);
+    if (!text) return std::nullopt;
+    std::vector<QuantityKind> kinds;
+    for (const KeySpec* spec : SpecsOf(key)) kinds.push_back(spec->kind);
+    std::string error;
+    const std::optional<Quantity> quantity =
+        internal::ParseQuantity(*text, kinds, SpecsOf(key).front()->unit, &error);
+    if (!quantity) {
+      Error(key, fmt::format("{}: {}", key, error));
+      return std::nullopt;
+    }
+    for (const KeySpec* spec : SpecsOf(key)) {
+      if (spec->kind != quantity->kind) continue;
+      const std::string problem = RangeProblem(*spec, quantity->value);
+      if (problem.empty()) return quantity;
+      Error(key, fmt::format("{} must be {}; got `{}`{}", key, problem, *text,
+                             spec->kind == K::kFraction && quantity->value > 1
+                                 ? " (write a fraction, 0.95, or a percent, 95 %)"
+                                 : ""));
+    }
+    return std::nullopt;
+  }
+
+  std::optional<double> Number(std::string_view key) {
+    const std::optional<Quantity> quantity = QuantityOf(key);
+    if (!quantity) return std::nullopt;
+    return quantity->value;
+  }
+
+  std::optional<int> Integer(std::string_view key) {
+    const std::optional<double> value = Number(key);
+    if (!value) return std::nullopt;
+    if (std::abs(*value) > 1e9 || *value != std::floor(*value)) {
+      Error(key, fmt::format("{} must be a whole number; got `{}`", key, *Text(key)));
+      return std::nullopt;
+    }
+    return static_cast<int>(*value);
+  }
+
+  // The list under `key`; an empty node when absent, empty or not a list (reported).
+  YAML::Node List(std::string_view key) {
+    RequireType(key, ValueType::kList, ValueType::kList);
+    return Container(key, /*want_list=*/true);
+  }
+  YAML::Node Mapping(std::string_view key) {
+    RequireType(key, ValueType::kMapping, ValueType::kMapping);
+    return Container(key, /*want_list=*/false);
+  }
+
+  template <typename T>
+  std::optional<T> Choose(std::string_view key, const Choices<T>& choices) {
+    const std::optional<std::string> text = Text(key);
+    if (!text) return std::nullopt;
+    std::vector<std::string_view> names;
+    for (const Choice<T>& choice : choices) {
+      if (choice.text == *text) return choice.value;
+      names.push_back(choice.text);
+    }
+    Error(key, fmt::format("{} `{}` is not one of {}{}", key, *text, JoinNames(names),
+                           DidYouMean(*text, names)));
+    return std::nullopt;
+  }
+
+  // Read(key, &field): overwrite the field (holding its default) when the key is present and good.
+  void Read(std::string_view key, double* out) {
+    if (const std::optional<double> value = Number(key)) *out = *value;
+  }
+  void Read(std::string_view key, std::optional<double>* out) {
+    if (const std::optional<double> value = Number(key)) *out = *value;
+  }
+  void Read(std::string_view key, int* out) {
+    if (const std::optional<int> value = Integer(key)) *out = *value;
+  }
+  void Read(std::string_view key, std::string* out) {
+    if (std::optional<std::string> value = Text(key)) *out = std::move(*value);
+  }
+  template <typename T>
+  void Read(std::string_view key, const Choices<T>& choices, T* out) {
+    if (const std::optional<T> value = Choose(key, choices)) *out = *value;
+  }
+
+ private:
+  const Entry* Find(std::string_view key) const {
+    const auto found = std::ranges::find(entries_, key, &Entry::key);
+    return found == entries_.end() ? nullptr : &*found;
+  }
+
+  // A read that does not match the key table is a bug in this file, not in the input.
+  void RequireType(std::string_view key, ValueType type, ValueType other_type) const {
+    const std::vector<const KeySpec*> rows = SpecsOf(key);
+    if (rows.empty() || (rows[0]->type != type && rows[0]->type != other_type)) {
+      throw std::logic_error(fmt::format("key `{}` read against its table", key));
+    }
+  }
+
+  std::vector<const KeySpec*> SpecsOf(std::string_view key) const {
+    std::vector<const KeySpec*> rows;
+    for (const KeySpec& spec : specs_) {
+      if (spec.key == key) rows.push_back(&spec);
+    }
+    return rows;
+  }
+
+  // "" when `value` (stored unit) lies in the spec's range, else "above 0 kvar" and the like.
+  static std::string RangeProblem(const KeySpec& spec, double value) {
+    const double shown = value / internal::UnitFactor(spec.kind, spec.unit).value_or(1.0);
+    const Range& range = spec.range;
+    const std::string unit = spec.unit.empty() ? "" : fmt::format(" {}", spec.unit);
+    if (range.lo_bracket == '(' ? shown <= range.lo : shown < range.lo) {
+      return fmt::format("{} {}{}", range.lo_bracket == '(' ? "above" : "at least", range.lo, unit);
+    }
+    if (range.hi_bracket == ')' ? shown >= range.hi : shown > range.hi) {
+      return fmt::format("{} {}{}", range.hi_bracket == ')' ? "below" : "at most", range.hi, unit);
+    }
+    return "";
+  }
+
+  YAML::Node Container(std::string_view key, bool want_list) {
+    const Entry* entry = Find(key);
+    if (!entry || entry->value.IsNull()) return YAML::Node();
+    if (want_list ? entry->value.IsSequence() : entry->value.IsMap()) return entry->value;
+    Error(key, want_list ? fmt::format("`{}` must be a list (`- ...` lines or `[a, b]`), not {}",
+                                       key, ShapeOf(entry->value))
+                         : fmt::format("`{}` must be a mapping of keys, not {}", key,
+                                       ShapeOf(entry->value)));
+    return YAML::Node();
+  }
+
+  std::vector<Entry> entries_;
+  SourceLocation where_;
+  std::string_view noun_;
+  std::string title_;  // "transformer `T1`"
+  std::span<const KeySpec> specs_;
+  Diagnostics* diagnostics_;
+};
+
+// A reader for an element or table row; nothing when `node` is not a mapping (reported).
+std::optional<MappingReader> ReadMapping(const YAML::Node& node, const std::string& file,
+                                         std::string_view noun, std::span<const KeySpec> specs,
+                                         Diagnostics* diagnostics);
+
+}  // namespace overtone::internal
+
+#endif  // OVERTONE_INTERNAL_MAPPING_READER_H_
