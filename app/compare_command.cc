@@ -1,10 +1,6 @@
 // app/compare_command.cc — `overtone compare BASE PROPOSED`: what changes between two cases.
-#include <cstdio>
-#include <cstdlib>
 #include <iostream>
 #include <memory>
-
-#include <unistd.h>
 
 #include "commands.h"
 #include "overtone/compare.h"
@@ -46,8 +42,7 @@ Command AddCompareCommand(CLI::App& app) {
     if (!args->json.empty()) {
       WriteFileAtomically(args->json, [&](std::ostream& out) { WriteComparisonJson(c, out); });
     }
-    const bool colour = !args->no_color && std::getenv("NO_COLOR") == nullptr && isatty(fileno(stdout));
-    PrintComparison(c, std::cout, colour);
+    PrintComparison(c, std::cout, WantColour(args->no_color));
     return kExitOk;
   }};
 }

@@ -28,6 +28,7 @@ Command AddStudyCommand(CLI::App& app) {
     int threads = 0;
     bool no_scan = false;
     bool fail_on_violation = false;
+    bool no_color = false;
   };
   auto args = std::make_shared<Args>();
   CLI::App* cmd = app.add_subcommand(
@@ -41,6 +42,7 @@ Command AddStudyCommand(CLI::App& app) {
   cmd->add_option("--threads", args->threads, "worker threads for the harmonic orders (0 = all cores)")
       ->check(CLI::Range(0, 1024));
   cmd->add_flag("--no-scan", args->no_scan, "leave resonance screening (frequency scan) out");
+  cmd->add_flag("--no-color", args->no_color, "no colour in the tables (also when NO_COLOR is set)");
   cmd->add_flag("--fail-on-violation", args->fail_on_violation,
                 "exit with status 3 when the limit assessment finds violations (outputs are written)");
   return {cmd, [args]() {
@@ -56,7 +58,7 @@ Command AddStudyCommand(CLI::App& app) {
       WriteFileAtomically(args->json, [&](std::ostream& out) { WriteStudyJson(result, out); });
     }
     if (!args->csv_dir.empty()) WriteStudyCsv(result, args->csv_dir);
-    if (args->json != "-") PrintStudyTables(result, std::cout);
+    if (args->json != "-") PrintStudyTables(result, std::cout, WantColour(args->no_color));
     const bool violated = !result.assessment.violations.empty();
     return args->fail_on_violation && violated ? kExitViolation : kExitOk;
   }};

@@ -14,8 +14,9 @@ namespace overtone::internal {
 // limits at the pcc when the profile has them and I_L is known, capacitor duty (IEEE 18).
 void AssessLimits(const LimitProfile& profile, StudyResult& result);
 
-// The terminal "Limits" section: bus checks, pcc current, violations, design guide.
-void PrintLimitTables(const StudyResult& result, std::ostream& out);
+// The terminal "Limits" section: bus checks, pcc current, violations, design guide; failures in
+// words, and in colour when `colour`.
+void PrintLimitTables(const StudyResult& result, std::ostream& out, bool colour = false);
 
 }  // namespace overtone::internal
 

@@ -5,6 +5,7 @@
 #include <fmt/ostream.h>
 
 #include "assessment.h"
+#include "output_common.h"
 
 namespace overtone::internal {
 namespace {
@@ -21,7 +22,10 @@ void PrintViolations(const char* heading, const std::vector<Violation>& list, st
 
 }  // namespace
 
-void PrintLimitTables(const StudyResult& r, std::ostream& out) {
+void PrintLimitTables(const StudyResult& r, std::ostream& out, bool colour) {
+  const auto verdict = [&](const std::string& word) {
+    return word == "pass" ? word : Marked(word, Tone::kBad, colour);
+  };
   const Assessment& a = r.assessment;
   fmt::print(out, "\nLimits ({}, profile {})\n", a.title, a.profile);
   if (!a.buses.empty()) {
@@ -33,8 +37,7 @@ void PrintLimitTables(const StudyResult& r, std::ostream& out) {
       const std::string role = c.bus == r.pcc.bus ? "pcc" : c.design_guide ? "design guide" : "limit";
       fmt::print(out, "{:<{}}  {:<12}  {:>7.2f}  {:>7.2f}  {:>5}  {:>7.2f}  {:>7.2f}  {}\n", c.bus, w,
                  role, c.thd_percent, c.thd_limit_percent, c.worst_order, c.worst_percent,
-                 c.worst_limit_percent,
-                 c.pass ? "pass" : c.design_guide ? "over (design guide)" : "FAIL");
+                 c.worst_limit_percent, verdict(BusVerdict(&c)));
     }
     fmt::print(out, "(order: the order nearest its limit)\n");
   }
@@ -48,10 +51,10 @@ void PrintLimitTables(const StudyResult& r, std::ostream& out) {
       }
     }
     fmt::print(out, "pcc current at {}: TDD {:.2f} % (limit {:.2f}) {}", p.bus, *p.tdd_percent,
-               *p.tdd_limit_percent, *p.tdd_percent > *p.tdd_limit_percent ? "FAIL" : "pass");
+               *p.tdd_limit_percent, verdict(*p.tdd_percent > *p.tdd_limit_percent ? "FAIL" : "pass"));
     if (worst) {
       fmt::print(out, "; order {} {:.2f} % of I_L (limit {:.2f}) {}", worst->order, worst->percent_of_il,
-                 *worst->limit_percent, worst->pass.value_or(true) ? "pass" : "FAIL");
+                 *worst->limit_percent, verdict(worst->pass.value_or(true) ? "pass" : "FAIL"));
     }
     fmt::print(out, "\n");
     if (p.demand_current_is_default) {

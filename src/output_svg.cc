@@ -200,6 +200,13 @@ std::string BarChartSvg(const BarChartData& c) {
   const double slot = (right - left) / std::max<std::size_t>(1, c.values.size());
   const auto y = [&](double v) { return bottom - (bottom - top) * v / top_value; };
   const std::string hatch = "over-" + c.id;
+  // With many bars only some can carry a label: those with a visible value (or a violation),
+  // never two side by side, so a spectrum's orders 5, 7, 11, 13 are named and empty ones are not.
+  const bool crowded = c.values.size() > 26;
+  std::vector<bool> labelled(c.values.size(), !crowded);
+  for (std::size_t i = 0; crowded && i < c.values.size(); ++i) {
+    labelled[i] = c.values[i] >= 0.01 * top_value && (i == 0 || !labelled[i - 1]);
+  }
   const int height = any_limit || any_over ? 340 : 314;  // the legend row only when it has marks
   std::string s = fmt::format(
       "<svg xmlns=\"http://www.w3.org/2000/svg\" width=\"{0}\" height=\"{7}\" viewBox=\"0 0 {0} {7}\" "
@@ -236,7 +243,7 @@ std::string BarChartSvg(const BarChartData& c) {
       s += fmt::format("<text x=\"{:.1f}\" y=\"{:.1f}\" text-anchor=\"middle\" font-weight=\"bold\">over</text>\n",
                        x + w / 2, std::min(y(c.values[i]), y(*limit(i))) - 5);
     }
-    if (c.values.size() <= 26 || i % 2 == 0) {
+    if (labelled[i]) {
       s += fmt::format("<text x=\"{0:.1f}\" y=\"{1}\" transform=\"rotate(-45 {0:.1f} {1})\" "
                        "text-anchor=\"end\">{2}</text>\n", x + w / 2, bottom + 12, internal::XmlEscape(c.labels[i]));
     }

@@ -1,12 +1,17 @@
 // src/output_table.cc — terminal tables of a study: buses, drive groups, pcc, notes.
 #include <algorithm>
 #include <cmath>
+#include <cstdio>
+#include <cstdlib>
+
+#include <unistd.h>
 
 #include <fmt/format.h>
 #include <fmt/ostream.h>
 
 #include "assessment.h"
 #include "capacitor_duty.h"
+#include "output_common.h"
 #include "overtone/report.h"
 
 namespace overtone {
@@ -52,7 +57,7 @@ std::string DutyVerdict(const CapacitorDuty& c) {
   return text;
 }
 
-void PrintDutyAndResonances(const StudyResult& r, std::ostream& out) {
+void PrintDutyAndResonances(const StudyResult& r, std::ostream& out, bool colour) {
   if (!r.capacitors.empty()) {
     const std::size_t w = Widest(4, r.capacitors, [](const CapacitorDuty& c) -> const std::string& { return c.name; });
     const std::size_t bw = Widest(3, r.capacitors, [](const CapacitorDuty& c) -> const std::string& { return c.bus; });
@@ -64,7 +69,8 @@ void PrintDutyAndResonances(const StudyResult& r, std::ostream& out) {
       const std::string steps = c.kind == "filter" ? "filter" : fmt::format("{}/{}", c.steps_on, c.steps);
       fmt::print(out, "{:<{}}  {:<{}}  {:>6}  {:>6.1f}  {:>7.1f}  {:>7.1f}  {:>6.1f}  {:>6.1f}  {}\n",
                  c.name, w, c.bus, bw, steps, c.vrms_percent, c.vpeak_percent, c.vpeak_arith_percent,
-                 c.irms_percent, c.kvar_percent, DutyVerdict(c));
+                 c.irms_percent, c.kvar_percent,
+                 c.pass ? DutyVerdict(c) : internal::Marked(DutyVerdict(c), internal::Tone::kBad, colour));
     }
   }
   if (!r.transformers.empty()) {
@@ -92,7 +98,11 @@ void PrintDutyAndResonances(const StudyResult& r, std::ostream& out) {
 
 }  // namespace
 
-void PrintStudyTables(const StudyResult& r, std::ostream& out) {
+bool WantColour(bool no_color) {
+  return !no_color && std::getenv("NO_COLOR") == nullptr && isatty(fileno(stdout));
+}
+
+void PrintStudyTables(const StudyResult& r, std::ostream& out, bool colour) {
   fmt::print(out, "Study: {}  ({} Hz, orders 2..{}, {} summation)\n\n", r.study.name,
              r.study.frequency_hz, r.study.max_order, ToString(r.study.summation));
 
@@ -124,8 +134,8 @@ void PrintStudyTables(const StudyResult& r, std::ostream& out) {
                p.tdd_percent.value_or(0.0));
   }
   fmt::print(out, "\n");
-  PrintDutyAndResonances(r, out);
-  internal::PrintLimitTables(r, out);
+  PrintDutyAndResonances(r, out, colour);
+  internal::PrintLimitTables(r, out, colour);
 
   if (!r.warnings.empty()) {
     fmt::print(out, "\nWarnings\n");

@@ -17,8 +17,13 @@ namespace overtone {
 // One screen on a loaded plant: counts of buses and elements, drive groups by front end, power.
 void PrintPlantSummary(const Plant& plant, std::ostream& out);
 
-// Bus table, drive table, pcc summary, warnings and cautions, for a terminal.
-void PrintStudyTables(const StudyResult& result, std::ostream& out);
+// Bus table, drive table, pcc summary, warnings and cautions, for a terminal. Failures are
+// marked in words; `colour` also colours them (see WantColour).
+void PrintStudyTables(const StudyResult& result, std::ostream& out, bool colour = false);
+
+// Whether terminal tables should use colour: standard output is a terminal, `NO_COLOR` is not
+// set, and `--no-color` (`no_color`) was not given.
+bool WantColour(bool no_color);
 
 // The JSON document of PLANT-FORMAT.md ("overtone study PLANT --json"), streamed.
 void WriteStudyJson(const StudyResult& result, std::ostream& out);
