@@ -96,6 +96,15 @@ assert abs(s["base"]["order"] - math.sqrt(100 / 4)) < 0.02, s
 assert abs(s["proposed"]["order"] - math.sqrt(100 / 3)) < 0.02, s
 assert s["characteristic_order"] == 5 and s["near_characteristic"] is False, s  # 5.77: 0.77 from 5
 PY
+#    Adding the 4 Mvar bank to the plain bus: a peak appears at 5.00, on the 5th (within 0.5).
+run cap_new 0 "$BIN" compare "$PAIR/one-bus-base.yaml" "$PAIR/one-bus-cap4.yaml" --json -
+/usr/bin/python3 - "$WORK/cap_new.out" <<'PY' || fail "capacitor added: resonance not 'appeared' at sqrt(S_sc/Q_c)"
+import json, math, sys
+s = json.load(open(sys.argv[1]))["resonance_shifts"]
+assert len(s) == 1 and s[0]["change"] == "appeared" and "base" not in s[0], s
+assert abs(s[0]["proposed"]["order"] - math.sqrt(100 / 4)) < 0.02, s
+assert s[0]["characteristic_order"] == 5 and s[0]["near_characteristic"] is True, s
+PY
 
 # 3. The demo pair: the bottling line adds substation E (two buses) and breaks the pcc current
 #    limits; the table marks changes in words and has no colour when not on a terminal.
