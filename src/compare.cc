@@ -129,10 +129,12 @@ std::string Worst(int order, double percent) {
   return order > 0 ? fmt::format("{}: {:.2f}", order, percent) : std::string("-");
 }
 
-// "worse" / "better" / "same" for a figure where more is worse, by 0.005 (the printed precision).
+// "worse" / "better" / "same" for a percentage where more is worse. Changes under 0.05 point are
+// "same": well below what a meter resolves, and they would bury the changes that matter.
 std::string Direction(double base, double proposed) {
-  if (proposed > base + 0.005) return "worse";
-  if (proposed < base - 0.005) return "better";
+  constexpr double kSamePoints = 0.05;
+  if (proposed > base + kSamePoints) return "worse";
+  if (proposed < base - kSamePoints) return "better";
   return "same";
 }
 
