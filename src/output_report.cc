@@ -427,15 +427,15 @@ std::string Html(const std::string& title, const std::vector<Section>& sections)
     for (const std::string& p : s.paragraphs) h += "<p>" + CodeSpans(XmlEscape(p)) + "</p>\n";
     for (const Table& t : s.tables) {
       if (!t.caption.empty()) h += "<p class=\"caption\">" + XmlEscape(t.caption) + "</p>\n";
-      h += "<table><tr>";
+      h += "<table><thead><tr>";  // a thead repeats on every printed page the table spans
       for (const auto& x : t.header) h += "<th>" + XmlEscape(x) + "</th>";
-      h += "</tr>\n";
+      h += "</tr></thead><tbody>\n";
       for (const auto& row : t.rows) {
         h += "<tr>";
         for (const auto& x : row) h += (IsBadWord(x) ? "<td class=\"bad\">" : "<td>") + XmlEscape(x) + "</td>";
         h += "</tr>\n";
       }
-      h += "</table>\n";
+      h += "</tbody></table>\n";
     }
     for (const internal::ReportChart& c : s.charts) h += "<figure>\n" + c.svg + "</figure>\n";
     h += "</section>\n";
