@@ -1,8 +1,9 @@
 // src/output_mitigation.cc — mitigation options as a terminal table, JSON, Markdown and HTML.
+#include "output_mitigation.h"
+
 #include <fmt/format.h>
 
 #include <ostream>
-#include <sstream>
 
 #include "json_writer.h"
 #include "output_common.h"
@@ -129,53 +130,24 @@ void WriteMitigationJson(const MitigationResult& r, std::ostream& out) {
   out << '\n';
 }
 
-std::string MitigationMarkdown(const MitigationResult& r) {
-  std::ostringstream md;
-  md << "## Mitigation options\n\n" << BaseLine(r) << "\n\n";
+namespace internal {
+
+ReportSection MitigationSection(const MitigationResult& r) {
+  ReportSection s{"Mitigation options", {BaseLine(r)}, {}, {}};
   if (!r.needed()) {
-    md << "The plant meets its limit profile and design guide: nothing to mitigate.\n\n";
-    return md.str();
+    s.paragraphs.push_back(
+        "The plant meets its limit profile and design guide: nothing to mitigate.");
+    return s;
   }
-  md << "| " << fmt::format("{}", fmt::join(kHeader, " | ")) << " |\n|";
-  for (std::size_t c = 0; c < kHeader.size(); ++c) md << "---|";
-  md << '\n';
-  for (std::size_t i = 0; i < r.options.size(); ++i) {
-    md << "| " << fmt::format("{}", fmt::join(Cells(static_cast<int>(i) + 1, r.options[i]), " | "))
-       << " |\n";
-  }
-  md << '\n'
-     << kDefinitions
-     << " Each option is a plant file that extends this plant (`overtone "
-        "mitigate PLANT -o DIR`).\n\n";
-  for (const std::string& n : r.notes) md << "- " << n << '\n';
-  md << '\n';
-  return md.str();
+  ReportTable t{kHeader, {}, "Options, best first (each a plant file in `mitigation/`)"};
+  for (std::size_t i = 0; i < r.options.size(); ++i)
+    t.rows.push_back(Cells(static_cast<int>(i) + 1, r.options[i]));
+  s.tables.push_back(std::move(t));
+  s.paragraphs.push_back(kDefinitions);
+  for (const std::string& n : r.notes) s.paragraphs.push_back(n);
+  return s;
 }
 
-std::string MitigationHtml(const MitigationResult& r) {
-  using internal::XmlEscape;
-  std::ostringstream h;
-  h << "<h2>Mitigation options</h2>\n<p>" << XmlEscape(BaseLine(r)) << "</p>\n";
-  if (!r.needed()) {
-    h << "<p>The plant meets its limit profile and design guide: nothing to mitigate.</p>\n";
-    return h.str();
-  }
-  h << "<table>\n<tr>";
-  for (const std::string& c : kHeader) h << "<th>" << XmlEscape(c) << "</th>";
-  h << "</tr>\n";
-  for (std::size_t i = 0; i < r.options.size(); ++i) {
-    h << "<tr>";
-    for (const std::string& c : Cells(static_cast<int>(i) + 1, r.options[i]))
-      h << "<td>" << XmlEscape(c) << "</td>";
-    h << "</tr>\n";
-  }
-  h << "</table>\n<p>" << XmlEscape(kDefinitions) << "</p>\n";
-  if (!r.notes.empty()) {
-    h << "<ul>\n";
-    for (const std::string& n : r.notes) h << "<li>" << XmlEscape(n) << "</li>\n";
-    h << "</ul>\n";
-  }
-  return h.str();
-}
+}  // namespace internal
 
 }  // namespace overtone

@@ -8,6 +8,7 @@
 #include <filesystem>
 #include <string>
 
+#include "output_mitigation.h"
 #include "overtone/load.h"
 #include "overtone/scan.h"
 
@@ -160,4 +161,14 @@ TEST_CASE("A plant within its limits needs no mitigation", "[mitigate]") {
   CHECK(r.options.empty());
   WriteMitigationPlantFiles(r, options.out_dir);
   CHECK_FALSE(fs::exists(options.out_dir));
+}
+
+TEST_CASE("The report section lists the options best first", "[mitigate]") {
+  const MitigationResult& r = Mill().result;
+  const internal::ReportSection s = internal::MitigationSection(r);
+  CHECK(s.title == "Mitigation options");
+  REQUIRE(s.tables.size() == 1);
+  REQUIRE(s.tables[0].rows.size() == r.options.size());
+  CHECK(s.tables[0].rows[0][1] == r.options[0].name);
+  CHECK(s.tables[0].header.size() == s.tables[0].rows[0].size());
 }

@@ -78,10 +78,6 @@ void PrintMitigationTable(const MitigationResult& result, std::ostream& out);
 // {"options": [...]} of PLANT-FORMAT.md, with the plant's own figures, notes and cautions.
 void WriteMitigationJson(const MitigationResult& result, std::ostream& out);
 
-// The report's "Mitigation options" section: Markdown, and an HTML fragment (no page wrapper).
-std::string MitigationMarkdown(const MitigationResult& result);
-std::string MitigationHtml(const MitigationResult& result);
-
 }  // namespace overtone
 
 #endif  // OVERTONE_PUBLIC_MITIGATE_H_
