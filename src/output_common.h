@@ -2,6 +2,7 @@
 #ifndef OVERTONE_INTERNAL_OUTPUT_COMMON_H_
 #define OVERTONE_INTERNAL_OUTPUT_COMMON_H_
 
+#include <algorithm>
 #include <cctype>
 #include <cmath>
 #include <numbers>
@@ -9,6 +10,8 @@
 
 #include <optional>
 #include <vector>
+
+#include <fmt/format.h>
 
 #include "json_writer.h"
 #include "overtone/scan.h"
@@ -47,6 +50,26 @@ inline std::string CsvField(const std::string& s) {
   std::string q = "\"";
   for (char c : s) q += c == '"' ? std::string("\"\"") : std::string(1, c);
   return q + '"';
+}
+
+// " 5: 3.20   7: 2.10  11: 0.90": the three largest harmonic orders in percent of the fundamental.
+inline std::string LargestOrders(const Spectrum& s, double fundamental, const char* separator = "  ") {
+  if (fundamental <= 0.0) return "";
+  std::vector<int> orders;
+  for (std::size_t h = 2; h < s.by_order.size(); ++h) {
+    if (std::abs(s.by_order[h]) > 0.0) orders.push_back(static_cast<int>(h));
+  }
+  const auto larger = [&](int a, int b) {
+    const double ma = std::abs(s.at(a)), mb = std::abs(s.at(b));
+    return ma != mb ? ma > mb : a < b;
+  };
+  const std::size_t shown = std::min<std::size_t>(3, orders.size());
+  std::partial_sort(orders.begin(), orders.begin() + static_cast<std::ptrdiff_t>(shown), orders.end(), larger);
+  std::string text;
+  for (std::size_t k = 0; k < shown; ++k) {
+    text += fmt::format("{}{:>2}: {:.2f}", k ? separator : "", orders[k], 100.0 * std::abs(s.at(orders[k])) / fundamental);
+  }
+  return text;
 }
 
 // The verdict of a bus's voltage check in words; `check` nullptr when the bus was not checked.

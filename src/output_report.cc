@@ -29,21 +29,6 @@ using SectionWriter = std::optional<Section> (*)(const ReportInputs&);
 std::string F(double v, int digits = 2) { return fmt::format("{:.{}f}", v, digits); }
 std::string F(const std::optional<double>& v, int digits = 2) { return v ? F(*v, digits) : "-"; }
 
-// "5: 3.20, 7: 2.10, 11: 0.90": the three largest orders of a spectrum, percent of its fundamental.
-std::string LargestOrders(const Spectrum& s, double fundamental) {
-  std::vector<std::pair<double, int>> orders;
-  for (std::size_t h = 2; h < s.by_order.size() && fundamental > 0.0; ++h) {
-    const double percent = 100.0 * std::abs(s.by_order[h]) / fundamental;
-    if (percent >= 0.005) orders.push_back({-percent, static_cast<int>(h)});
-  }
-  std::sort(orders.begin(), orders.end());
-  std::string text;
-  for (std::size_t k = 0; k < std::min<std::size_t>(3, orders.size()); ++k) {
-    text += fmt::format("{}{}: {:.2f}", k ? ", " : "", orders[k].second, -orders[k].first);
-  }
-  return text.empty() ? "-" : text;
-}
-
 std::optional<Section> Summary(const ReportInputs& in) {
   const StudyResult& r = in.result;
   const Assessment& a = r.assessment;
@@ -229,7 +214,7 @@ std::optional<Section> DriveGroups(const ReportInputs& in) {
   for (std::size_t k = 0; k < r.drives.size(); ++k) {
     const DriveResult& d = r.drives[k];
     t.rows.push_back({d.name, d.bus, std::to_string(d.count), ToString(d.front_end), F(d.indices.fundamental, 1),
-                      F(d.indices.thd_percent), LargestOrders(d.current_a, d.indices.fundamental)});
+                      F(d.indices.thd_percent), internal::LargestOrders(d.current_a, d.indices.fundamental, ", ")});
     // Orders 2 to the last one at 0.1 % or more: the tail of a spectrum would only be empty bars.
     BarChartData chart{fmt::format("drive{}", k), fmt::format("Drive group {} at {}: current by order", d.name, d.bus),
                        "% of I1", {}, {}, {}};

@@ -17,26 +17,6 @@
 namespace overtone {
 namespace {
 
-// "5: 3.2  7: 2.1  11: 0.9" — the three largest harmonic orders in percent of the fundamental.
-std::string LargestOrders(const Spectrum& s, double fundamental) {
-  if (fundamental <= 0.0) return "";
-  std::vector<int> orders;
-  for (std::size_t h = 2; h < s.by_order.size(); ++h) {
-    if (std::abs(s.by_order[h]) > 0.0) orders.push_back(static_cast<int>(h));
-  }
-  const auto larger = [&](int a, int b) {
-    const double ma = std::abs(s.at(a)), mb = std::abs(s.at(b));
-    return ma != mb ? ma > mb : a < b;
-  };
-  const std::size_t shown = std::min<std::size_t>(3, orders.size());
-  std::partial_sort(orders.begin(), orders.begin() + static_cast<std::ptrdiff_t>(shown), orders.end(), larger);
-  std::string text;
-  for (std::size_t k = 0; k < shown; ++k) {
-    text += fmt::format("{}{:>2}: {:.2f}", k ? "  " : "", orders[k], 100.0 * std::abs(s.at(orders[k])) / fundamental);
-  }
-  return text;
-}
-
 std::size_t Widest(std::size_t minimum, const auto& rows, const auto& name) {
   std::size_t w = minimum;
   for (const auto& r : rows) w = std::max(w, name(r).size());
@@ -112,7 +92,7 @@ void PrintStudyTables(const StudyResult& r, std::ostream& out, bool colour) {
   for (const BusResult& b : r.buses) {
     fmt::print(out, "{:<{}}  {:>7.3f}  {:>7.4f}  {:>7.2f}  {}\n", b.name, bw, b.nominal_v / 1e3,
                b.indices.fundamental, b.indices.thd_percent,
-               LargestOrders(b.voltage_pu, b.indices.fundamental));
+               internal::LargestOrders(b.voltage_pu, b.indices.fundamental));
   }
 
   if (!r.drives.empty()) {
