@@ -8,9 +8,11 @@
 #include <fmt/format.h>
 
 #include <algorithm>
+#include <array>
 #include <cmath>
 #include <complex>
 #include <filesystem>
+#include <map>
 #include <numbers>
 
 #include "mitigate_yaml.h"
@@ -252,7 +254,37 @@ constexpr int kCharacteristicOrders[] = {5, 7, 11, 13};
 // The transformer whose current at a characteristic order is the largest share of its rated
 // current feeds the chosen bus (its `to` side); without transformers, the bus where the drive
 // groups inject the most current at such an order.
+// The order a filter is tuned for: the lowest characteristic order that carries at least half
+// the largest of the drive groups' injections (harmonic VA, sqrt 3 V_nom |I_h|, summed over the
+// groups; index as kCharacteristicOrders). The injections, not the network's currents, since a
+// resonance amplifies one order in the network. A single-tuned filter forms a parallel resonance
+// with the supply below its tuning, so a filter tuned above a strong lower order would put that
+// resonance on it (common practice: tune to the lowest significant order first).
+int FilterOrder(const std::array<double, 4>& currents) {
+  const double largest = *std::ranges::max_element(currents);
+  for (std::size_t k = 0; k < currents.size(); ++k) {
+    if (currents[k] >= 0.5 * largest) return kCharacteristicOrders[k];
+  }
+  return kCharacteristicOrders[0];
+}
+
+std::array<double, 4> InjectedVa(const StudyResult& r) {
+  std::array<double, 4> va{};
+  for (const DriveResult& d : r.drives) {
+    if (static_cast<int>(d.current_a.by_order.size()) <= 13) continue;
+    double v = 0.0;
+    for (const BusResult& b : r.buses) {
+      if (b.name == d.bus) v = b.nominal_v;
+    }
+    for (std::size_t k = 0; k < va.size(); ++k) {
+      va[k] += std::numbers::sqrt3 * v * std::abs(d.current_a.at(kCharacteristicOrders[k]));
+    }
+  }
+  return va;
+}
+
 std::optional<FilterSite> ChooseFilterSite(const Plant& plant, const StudyResult& r) {
+  const int order = FilterOrder(InjectedVa(r));
   std::optional<FilterSite> site;
   double best = 0.0;
   for (const Transformer& t : plant.transformers) {
@@ -266,30 +298,37 @@ std::optional<FilterSite> ChooseFilterSite(const Plant& plant, const StudyResult
     }
     if (!br || !from || static_cast<int>(br->current_a.by_order.size()) <= 13) continue;
     const double rated_a = t.rating_va / (std::numbers::sqrt3 * from->nominal_v);
-    for (int h : kCharacteristicOrders) {
-      const double share = std::abs(br->current_a.at(h)) / rated_a;
-      if (share <= best) continue;
-      best = share;
-      // S = 3 V_phase conj(I) at the from end, V in volts phase to neutral.
-      const Phasor v = from->voltage_pu.at(1) * from->nominal_v / std::numbers::sqrt3;
-      const double q = 3.0 * std::imag(v * std::conj(br->current_a.at(1)));
-      site = FilterSite{t.to, h, std::max(0.0, q), t.rating_va};
+    std::array<double, 4> shares{};
+    for (std::size_t k = 0; k < shares.size(); ++k) {
+      shares[k] = std::abs(br->current_a.at(kCharacteristicOrders[k])) / rated_a;
     }
+    const double largest = *std::ranges::max_element(shares);
+    if (largest <= best) continue;
+    best = largest;
+    // S = 3 V_phase conj(I) at the from end, V in volts phase to neutral.
+    const Phasor v = from->voltage_pu.at(1) * from->nominal_v / std::numbers::sqrt3;
+    const double q = 3.0 * std::imag(v * std::conj(br->current_a.at(1)));
+    site = FilterSite{t.to, order, std::max(0.0, q), t.rating_va};
   }
   if (site) return site;
+  // Without transformers: the bus where the drive groups inject the most.
+  std::map<std::string, std::array<double, 4>> by_bus;
   for (const DriveResult& d : r.drives) {
     if (static_cast<int>(d.current_a.by_order.size()) <= 13) continue;
-    for (int h : kCharacteristicOrders) {
-      if (std::abs(d.current_a.at(h)) <= best) continue;
-      best = std::abs(d.current_a.at(h));
-      site = FilterSite{d.bus, h, 0.0, 0.0};
-    }
+    for (std::size_t k = 0; k < 4; ++k)
+      by_bus[d.bus][k] += std::abs(d.current_a.at(kCharacteristicOrders[k]));
+  }
+  for (const auto& [bus, currents] : by_bus) {
+    const double largest = *std::ranges::max_element(currents);
+    if (largest <= best) continue;
+    best = largest;
+    site = FilterSite{bus, order, 0.0, 0.0};
   }
   return site;
 }
 
 // The single-tuned filter for a site, `scale` times the base size (docs/mitigate.md):
-// tuned 0.3 of an order below the dominant order (4.7th for the 5th), so that tolerances and
+// tuned 0.3 of an order below its order (FilterOrder: 4.7th for the 5th), so that tolerances and
 // capacitance loss (which raise the tuning) do not move it onto the order; effective kvar at the
 // bus Q = half the reactive power drawn through the transformer, at least 10 % of its rating
 // (without a transformer: a quarter of the drive kW at the bus), and at least the kvar of the
@@ -497,11 +536,14 @@ MitigationResult EvaluateMitigations(const Plant& plant, const MitigateOptions& 
   if (std::optional<MitigationOption> filter = FilterOption(plant, base, evaluator)) {
     result.options.push_back(std::move(*filter));
   }
+  // Tiers: profile and design guide met, profile met, neither; then by score.
+  const auto tier = [](const MitigationOption& o) {
+    return o.figures.meets_profile ? (o.figures.meets_design_guide ? 2 : 1) : 0;
+  };
   std::ranges::stable_sort(result.options,
-                           [](const MitigationOption& a, const MitigationOption& b) {
+                           [&](const MitigationOption& a, const MitigationOption& b) {
                              if (a.solved != b.solved) return a.solved;
-                             if (a.figures.meets_profile != b.figures.meets_profile)
-                               return a.figures.meets_profile;
+                             if (tier(a) != tier(b)) return tier(a) > tier(b);
                              if (a.score != b.score) return a.score > b.score;
                              return a.figures.violation < b.figures.violation;
                            });

@@ -9,13 +9,22 @@
 namespace overtone {
 namespace {
 
+// Value and limit with as many decimals (3 to 6) as it takes to show them apart.
+std::string OverLimit(double value, double limit) {
+  int digits = 3;
+  while (digits < 6 &&
+         fmt::format("{:.{}f}", value, digits) == fmt::format("{:.{}f}", limit, digits))
+    ++digits;
+  return fmt::format("{:.{}f} % > {:.{}f} %", value, digits, limit, digits);
+}
+
 std::string BindingText(const BusHeadroom& h) {
   if (h.capped) return "none up to the search cap";
   if (!h.binding) return "";
   if (h.binding->what == "unsolvable")
     return fmt::format("unsolvable (load flow), {}", h.binding->where);
-  return fmt::format("{} at {}: {:.2f} % > {:.2f} %", h.binding->what, h.binding->where,
-                     h.binding->value, h.binding->limit);
+  return fmt::format("{} at {}: {}", h.binding->what, h.binding->where,
+                     OverLimit(h.binding->value, h.binding->limit));
 }
 
 }  // namespace
