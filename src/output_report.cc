@@ -308,6 +308,13 @@ std::optional<Section> ComparisonWithBase(const ReportInputs& in) {
                                      count(c.cleared_violations.size()), count(c.resonance_shifts.size())));
   if (!c.new_violations.empty()) s.tables.push_back(ViolationTable(c.new_violations, "New violations"));
   if (!c.cleared_violations.empty()) s.tables.push_back(ViolationTable(c.cleared_violations, "Cleared violations"));
+  if (!c.remaining_violations.empty()) {
+    Table v{{"where", "what", "base %", "proposed %", "limit %"}, {}, "Violations in both cases"};
+    for (const ViolationChange& x : c.remaining_violations) {
+      v.rows.push_back({x.where, x.what, F(x.value_base), F(x.value_proposed), F(x.limit)});
+    }
+    s.tables.push_back(std::move(v));
+  }
   if (!c.resonance_shifts.empty()) {
     Table z{{"bus", "change", "order base", "order proposed", "risk base", "risk proposed", "nearest 6k±1"}, {},
             "Resonance shifts (present capacitor steps)"};

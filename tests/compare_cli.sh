@@ -128,6 +128,18 @@ PY
 run demo_back 0 "$BIN" compare "$SRC/cases/demo/proposed.yaml" "$SRC/cases/demo/plant.yaml"
 grep -q '^USS-E .* removed$' "$WORK/demo_back.out" || fail "demo reversed: USS-E not listed as removed"
 
+# A case against itself changes nothing (the study is deterministic, docs/output.md): every delta
+# is zero, no violation is new or cleared, no peak moved.
+run self 0 "$BIN" compare "$SRC/cases/demo/proposed.yaml" "$SRC/cases/demo/proposed.yaml" --json -
+/usr/bin/python3 - "$WORK/self.out" <<'PY' || fail "self comparison: changes reported"
+import json, sys
+doc = json.load(open(sys.argv[1]))
+assert all(b["status"] == "both" and b["thd_v_change_percent"] == 0 for b in doc["buses"]), doc["buses"]
+assert doc["pcc"]["tdd_change_percent"] == 0, doc["pcc"]
+assert doc["new_violations"] == [] and doc["cleared_violations"] == [] and doc["resonance_shifts"] == [], doc
+assert len(doc["remaining_violations"]) >= 1, doc  # the proposed demo case has violations
+PY
+
 # 4. Colour only on a terminal, and never with --no-color (script(1) gives the run a terminal).
 if command -v script >/dev/null; then
   script -qec "'$BIN' compare '$PAIR/one-bus-base.yaml' '$PAIR/one-bus-drive.yaml'" /dev/null >"$WORK/tty.out" 2>&1
