@@ -1,11 +1,12 @@
 // src/scan.cc — frequency scans: driving-point and transfer impedances, peaks, step configurations.
 //
 // Method: at each grid order the positive-sequence harmonic admittance matrix Y(h) is filled in the
-// fixed pattern and factored once; one solve per monitored or drive bus gives that bus's column of
-// Z = Y^-1, i.e. its driving-point impedance and the transfer impedances from it (the frequency
-// scan of harmonic penetration studies: J. Arrillaga, N. R. Watson, "Power System Harmonics",
-// 2nd ed.; IEEE Std 519-2014 application notes; from memory). Capacitor banks are added to the
-// diagonal per step configuration, so every configuration shares one network.
+// fixed pattern and factored once. The driving-point impedances of the monitored buses are the
+// diagonal of Z = Y^-1, found for all of them at once by selected inversion of the factors
+// (src/selected_inverse.h); the transfer impedances from a drive bus are one solve for its column
+// of Z (the frequency scan of harmonic penetration studies: J. Arrillaga, N. R. Watson, "Power
+// System Harmonics", 2nd ed.; IEEE Std 519-2014 application notes; from memory). Capacitor banks
+// are added to the diagonal per step configuration, so every configuration shares one network.
 #include "scan.h"
 
 #include <algorithm>
@@ -19,6 +20,7 @@
 #include "network.h"
 #include "overtone/errors.h"
 #include "parallel.h"
+#include "selected_inverse.h"
 #include "sparse_lu.h"
 
 namespace overtone {
@@ -79,7 +81,12 @@ int ScanOptions::point_count() const {
 namespace internal {
 namespace {
 
-constexpr double kRefineTolerance = 1e-7;  // orders
+constexpr double kRefineTolerance = 1e-9;  // orders
+// From this many monitored buses on, driving points come from selected inversion (about one more
+// factorization per grid point) rather than one solve per bus.
+constexpr std::size_t kSelectedInversionFrom = 4;
+// Grid points around a peak through which its admittance is interpolated.
+constexpr std::size_t kPeakWindow = 5;
 
 Plant WithoutShunts(const Plant& plant, bool keep_filters) {
   Plant p = plant;
@@ -154,8 +161,8 @@ struct SweepBuffers {
 };
 
 // One worker: its own numeric factorizations and a private copy of the banks whose steps it sets.
-// Each grid point and each peak is computed from the configuration alone, so results do not
-// depend on which worker computes them.
+// Each grid point is computed from the configuration alone, so results do not depend on which
+// worker computes them.
 class ScanWorker {
  public:
   explicit ScanWorker(const ScanModel& model)
@@ -172,34 +179,27 @@ class ScanWorker {
 
   // Grid points [first, last) of the configured network (or of the base network) into `out`.
   void Sweep(std::size_t first, std::size_t last, bool base, SweepBuffers& out) {
-    const std::vector<int>& monitored = model_.monitored();
-    for (std::size_t k = first; k < last; ++k) {
-      Factor(model_.orders()[k], base);
-      for (std::size_t m = 0; m < monitored.size(); ++m) {
-        out.curves[m][k] = Column(monitored[m], base)[monitored[m]];
-      }
-      for (std::size_t j = 0; j < out.transfers.size(); ++j) {
-        const std::vector<Complex>& z = Column(model_.drives()[j], base);
-        for (std::size_t m = 0; m < monitored.size(); ++m) out.transfers[j][m][k] = z[monitored[m]];
-      }
-    }
+    for (std::size_t k = first; k < last; ++k) SweepPoint(k, base, out);
   }
 
-  // Interior maxima of |Z| on a swept curve of monitored bus m, refined by golden-section search
-  // between the neighbouring grid points; |Z| in pu, amplification against the base network.
-  std::vector<ResonancePeak> Peaks(const std::vector<Complex>& z, std::size_t m) {
-    const std::vector<double>& orders = model_.orders();
-    const int bus = model_.monitored()[m];
-    std::vector<ResonancePeak> peaks;
-    for (std::size_t k = 1; k + 1 < z.size(); ++k) {
-      const double here = std::abs(z[k]);
-      if (!(here > std::abs(z[k - 1]) * (1.0 + 1e-9) && here >= std::abs(z[k + 1]))) continue;
-      ResonancePeak p = Refine(orders[k - 1], orders[k + 1], bus);
-      if (p.impedance_ohm < here) p = {orders[k], here};
-      p.amplification = p.impedance_ohm / std::abs(DrivingPoint(p.order, bus, true));
-      peaks.push_back(p);
+  // Grid point k: the monitored buses' driving points and, when `out` has room for them, the
+  // transfer impedances from the drive buses.
+  void SweepPoint(std::size_t k, bool base, SweepBuffers& out) {
+    const std::vector<int>& monitored = model_.monitored();
+    Factor(model_.orders()[k], base);
+    // Per-bus solves when there are few buses, or should the factors not allow the recurrences.
+    const bool selected = monitored.size() >= kSelectedInversionFrom &&
+                          (base ? base_ : fixed_).Extract(factors_) && inverse_.Compute(factors_);
+    for (std::size_t m = 0; m < monitored.size(); ++m) {
+      // Outside the computed set (A(i, i) not stored), the bus's column is solved instead.
+      if (!selected || !inverse_.Diagonal(monitored[m], &out.curves[m][k])) {
+        out.curves[m][k] = Column(monitored[m], base)[monitored[m]];
+      }
     }
-    return peaks;
+    for (std::size_t j = 0; j < out.transfers.size(); ++j) {
+      const std::vector<Complex>& z = Column(model_.drives()[j], base);
+      for (std::size_t m = 0; m < monitored.size(); ++m) out.transfers[j][m][k] = z[monitored[m]];
+    }
   }
 
  private:
@@ -236,37 +236,84 @@ class ScanWorker {
     return rhs_;
   }
 
-  Complex DrivingPoint(double h, int bus, bool base) {
-    Factor(h, base);
-    return Column(bus, base)[bus];
-  }
-
-  // Golden-section search for the largest |Z| in [lo, hi] (one grid step either side of a
-  // sampled maximum, so the interval holds one peak).
-  ResonancePeak Refine(double lo, double hi, int bus) {
-    const double g = (std::sqrt(5.0) - 1.0) / 2.0;
-    double c = hi - g * (hi - lo), d = lo + g * (hi - lo);
-    double fc = std::abs(DrivingPoint(c, bus, false)), fd = std::abs(DrivingPoint(d, bus, false));
-    while (hi - lo > kRefineTolerance) {
-      if (fc >= fd) {
-        hi = d, d = c, fd = fc;
-        c = hi - g * (hi - lo);
-        fc = std::abs(DrivingPoint(c, bus, false));
-      } else {
-        lo = c, c = d, fc = fd;
-        d = lo + g * (hi - lo);
-        fd = std::abs(DrivingPoint(d, bus, false));
-      }
-    }
-    const double order = 0.5 * (lo + hi);
-    return {order, std::abs(DrivingPoint(order, bus, false))};
-  }
-
   const ScanModel& model_;
   ReferencePivotLu fixed_, base_;  // the configured network and the one without shunts
+  LuFactors factors_;
+  SelectedInverse inverse_;
   std::vector<Complex> values_, rhs_;
   std::vector<Capacitor> banks_;
 };
+
+// An interior maximum of |Z| at grid point k (a plateau counts once, at its first point).
+bool IsGridMaximum(const std::vector<Complex>& z, std::size_t k) {
+  const double here = std::abs(z[k]);
+  return here > std::abs(z[k - 1]) * (1.0 + 1e-9) && here >= std::abs(z[k + 1]);
+}
+
+// The grid points [first, first + kPeakWindow) around grid point k (clipped to the grid) through
+// which a peak at k is interpolated.
+std::size_t WindowStart(std::size_t k, std::size_t points) {
+  if (points <= kPeakWindow) return 0;
+  return std::min(k < kPeakWindow / 2 ? 0 : k - kPeakWindow / 2, points - kPeakWindow);
+}
+
+// 1/Z at order h by Lagrange interpolation through the window's grid points. Near a parallel
+// resonance Z has a pole but 1/Z (the admittance seen from the bus) is smooth, so a polynomial
+// through a few points reproduces it closely (a series R-L with a shunt C: 1/Z is analytic there,
+// with its nearest singularity at the R-L branch's pole, far from the real axis when X/R is high).
+Complex InterpolatedAdmittance(const std::vector<double>& orders, const std::vector<Complex>& z,
+                               std::size_t first, double h) {
+  const std::size_t last = std::min(orders.size(), first + kPeakWindow);
+  Complex y;
+  for (std::size_t i = first; i < last; ++i) {
+    double weight = 1.0;
+    for (std::size_t j = first; j < last; ++j) {
+      if (j != i) weight *= (h - orders[j]) / (orders[i] - orders[j]);
+    }
+    y += weight / z[i];
+  }
+  return y;
+}
+
+// Interior maxima of |Z| on a swept curve, refined between the neighbouring grid points by
+// golden-section search on the interpolated admittance (no further factorization); impedances in
+// pu, amplification against the base network's curve at the same order.
+std::vector<ResonancePeak> CurvePeaks(const std::vector<double>& orders, const std::vector<Complex>& z,
+                                      const std::vector<Complex>& base) {
+  std::vector<ResonancePeak> peaks;
+  for (std::size_t k = 1; k + 1 < z.size(); ++k) {
+    if (!IsGridMaximum(z, k)) continue;
+    const double here = std::abs(z[k]);
+    const std::size_t first = WindowStart(k, z.size());
+    const auto y = [&](double h) { return std::abs(InterpolatedAdmittance(orders, z, first, h)); };
+    const double g = (std::sqrt(5.0) - 1.0) / 2.0;
+    double lo = orders[k - 1], hi = orders[k + 1];
+    double c = hi - g * (hi - lo), d = lo + g * (hi - lo), yc = y(c), yd = y(d);
+    while (hi - lo > kRefineTolerance) {
+      if (yc <= yd) {
+        hi = d, d = c, yd = yc;
+        c = hi - g * (hi - lo), yc = y(c);
+      } else {
+        lo = c, c = d, yc = yd;
+        d = lo + g * (hi - lo), yd = y(d);
+      }
+    }
+    ResonancePeak p{0.5 * (lo + hi), 1.0 / y(0.5 * (lo + hi))};
+    if (!(p.impedance_ohm >= here)) p = {orders[k], here};  // the sample itself is the better bound
+    p.amplification = p.impedance_ohm * std::abs(InterpolatedAdmittance(orders, base, first, p.order));
+    peaks.push_back(p);
+  }
+  return peaks;
+}
+
+// The grid points that CurvePeaks reads from the base curve: the windows of the curve's maxima.
+void MarkPeakWindows(const std::vector<Complex>& z, std::vector<char>& needed) {
+  for (std::size_t k = 1; k + 1 < z.size(); ++k) {
+    if (!IsGridMaximum(z, k)) continue;
+    const std::size_t first = WindowStart(k, z.size());
+    for (std::size_t i = first; i < std::min(z.size(), first + kPeakWindow); ++i) needed[i] = 1;
+  }
+}
 
 std::vector<Phasor> InOhms(const std::vector<Complex>& pu, double ohms_per_pu) {
   std::vector<Phasor> out(pu.size());
@@ -411,25 +458,45 @@ ScanResult ScanConfigurations(const Plant& plant, const ScanOptions& options,
                                   "only; the peaks of every configuration are listed", nc, curve_points));
   }
   constexpr std::size_t kChunk = 32;  // grid points per work item
-  const int chunks = static_cast<int>((r.orders.size() + kChunk - 1) / kChunk);
   const auto make_worker = [&model] { return std::make_unique<ScanWorker>(model); };
-  const auto chunk_end = [&](int i) { return std::min(r.orders.size(), (i + 1) * kChunk); };
-  SweepBuffers sweep(model, false), with_transfers(model, true);
+  // The listed grid points in parallel chunks: of the network configured with `steps`, or of the
+  // base network when `steps` is null.
+  const auto sweep_points = [&](const std::vector<std::size_t>& list,
+                                const std::vector<int>* steps, SweepBuffers& out) {
+    const int chunks = static_cast<int>((list.size() + kChunk - 1) / kChunk);
+    ParallelFor(chunks, options.threads, make_worker, [&](ScanWorker& w, int i) {
+      if (steps) w.SetConfiguration(*steps);
+      const std::size_t end = std::min(list.size(), (i + 1) * kChunk);
+      for (std::size_t q = i * kChunk; q < end; ++q) w.SweepPoint(list[q], !steps, out);
+    });
+  };
+  std::vector<std::size_t> all_points(r.orders.size());
+  for (std::size_t k = 0; k < all_points.size(); ++k) all_points[k] = k;
+  SweepBuffers sweep(model, false), with_transfers(model, true), base(model, false);
+  // The base network is the same for every configuration: each of its points is swept once, when
+  // a peak's window first needs it.
+  std::vector<char> base_swept(r.orders.size(), 0);
+  const auto sweep_base = [&](const std::vector<char>& needed) {
+    std::vector<std::size_t> list;
+    for (std::size_t k = 0; k < needed.size(); ++k) {
+      if (needed[k] && !base_swept[k]) list.push_back(k), base_swept[k] = 1;
+    }
+    if (!list.empty()) sweep_points(list, nullptr, base);
+  };
 
-  // One configuration: the grid in parallel chunks, then each bus's peaks in parallel; curves
-  // (and transfers) copied out when asked.
+  // One configuration: the grid, the base network where its peaks need it, then each bus's peaks;
+  // curves (and transfers) copied out when asked.
   r.scans.resize(nc * nb);
   const auto scan = [&](std::size_t c, bool curves, bool transfers) {
-    const std::vector<int>& steps = configurations[c].steps_on;
     SweepBuffers& out = transfers ? with_transfers : sweep;
-    ParallelFor(chunks, options.threads, make_worker, [&](ScanWorker& w, int i) {
-      w.SetConfiguration(steps);
-      w.Sweep(i * kChunk, chunk_end(i), false, out);
-    });
-    ParallelFor(static_cast<int>(nb), options.threads, make_worker, [&](ScanWorker& w, int m) {
-      w.SetConfiguration(steps);
+    sweep_points(all_points, &configurations[c].steps_on, out);
+    std::vector<char> needed(r.orders.size(), 0);
+    for (const std::vector<Complex>& curve : out.curves) MarkPeakWindows(curve, needed);
+    sweep_base(needed);
+    for (std::size_t m = 0; m < nb; ++m) {
       BusScan& s = r.scans[c * nb + m];
-      s = {static_cast<int>(m), static_cast<int>(c), {}, w.Peaks(out.curves[m], m), Risk::kLow};
+      s = {static_cast<int>(m), static_cast<int>(c), {},
+           CurvePeaks(r.orders, out.curves[m], base.curves[m]), Risk::kLow};
       const double scale = model.Ohms(model.monitored()[m], model.monitored()[m]);
       for (ResonancePeak& p : s.peaks) {
         p.impedance_ohm *= scale;
@@ -437,7 +504,7 @@ ScanResult ScanConfigurations(const Plant& plant, const ScanOptions& options,
         s.risk = std::max(s.risk, p.risk);
       }
       if (curves) s.impedance_ohm = InOhms(out.curves[m], scale);
-    });
+    }
     for (std::size_t j = 0; j < out.transfers.size(); ++j) {
       for (std::size_t m = 0; m < nb; ++m) {
         const int from = model.drives()[j], to = model.monitored()[m];
@@ -469,12 +536,10 @@ ScanResult ScanConfigurations(const Plant& plant, const ScanOptions& options,
       const int c = r.WorstConfigurationAt(static_cast<int>(m));
       if (c >= 0 && r.at(c, 0).impedance_ohm.empty()) scan(static_cast<std::size_t>(c), true, false);
     }
-    ParallelFor(chunks, options.threads, make_worker, [&](ScanWorker& w, int i) {
-      w.Sweep(i * kChunk, chunk_end(i), true, sweep);
-    });
+    sweep_base(std::vector<char>(r.orders.size(), 1));
     for (std::size_t m = 0; m < nb; ++m) {
       const int bus = model.monitored()[m];
-      r.base_impedance_ohm.push_back(InOhms(sweep.curves[m], model.Ohms(bus, bus)));
+      r.base_impedance_ohm.push_back(InOhms(base.curves[m], model.Ohms(bus, bus)));
     }
   }
   if (std::all_of(injection_percent.begin(), injection_percent.end(),

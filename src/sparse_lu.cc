@@ -127,6 +127,39 @@ bool SparseLu<Scalar>::Solve(std::vector<Scalar>& rhs) {
   }
 }
 
+template <typename Scalar>
+bool SparseLu<Scalar>::Extract(LuFactors& out) const {
+  if constexpr (std::is_same_v<Scalar, double>) {
+    throw std::logic_error("SparseLu<double>::Extract is not provided");
+  } else {
+    if (numeric_ == nullptr) return false;
+    auto* numeric = static_cast<klu_numeric*>(numeric_);
+    klu_symbolic* symbolic = Symbolic(analysis_);
+    const int n = symbolic->n, lnz = numeric->lnz, unz = numeric->unz;
+    out.n = n;
+    out.l_ptr.resize(n + 1), out.u_ptr.resize(n + 1);
+    out.l_idx.resize(lnz), out.u_idx.resize(unz);
+    out.l_val.resize(lnz), out.u_val.resize(unz);
+    out.row_perm.resize(n), out.col_perm.resize(n), out.row_scale.resize(n);
+    out.block_start.resize(symbolic->nblocks + 1);
+    out.re.resize(static_cast<std::size_t>(lnz) + unz);  // L then U
+    out.im.resize(out.re.size());
+    double* lx = out.re.data();
+    double* lz = out.im.data();
+    double* ux = lx + lnz;
+    double* uz = lz + lnz;
+    if (!klu_z_extract(numeric, symbolic, out.l_ptr.data(), out.l_idx.data(), lx, lz,
+                       out.u_ptr.data(), out.u_idx.data(), ux, uz, nullptr, nullptr, nullptr,
+                       nullptr, out.row_perm.data(), out.col_perm.data(), out.row_scale.data(),
+                       out.block_start.data(), Common(common_))) {
+      return false;
+    }
+    for (int p = 0; p < lnz; ++p) out.l_val[p] = {lx[p], lz[p]};
+    for (int p = 0; p < unz; ++p) out.u_val[p] = {ux[p], uz[p]};
+    return true;
+  }
+}
+
 template class SparseLu<double>;
 template class SparseLu<std::complex<double>>;
 

@@ -24,6 +24,20 @@ struct CscPattern {
   int Slot(int row, int col) const;
 };
 
+// KLU's factors of A in compressed columns (0-based, int): with M(k, j) = A(row_perm[k],
+// col_perm[j]) / row_scale[k] (scale factors in pivot order), M = L U + F, where L (unit diagonal, stored first in each
+// column) and U (diagonal stored last in each column) are block diagonal over the blocks
+// [block_start[b], block_start[b + 1]) of the block triangular form, and F holds the blocks above
+// the diagonal (not extracted). Row indices within a column are not sorted.
+struct LuFactors {
+  int n = 0;
+  std::vector<int> l_ptr, l_idx, u_ptr, u_idx;
+  std::vector<std::complex<double>> l_val, u_val;
+  std::vector<int> row_perm, col_perm, block_start;
+  std::vector<double> row_scale;
+  std::vector<double> re, im;  // scratch: KLU hands complex factors out as separate parts
+};
+
 // Symbolic analysis of a pattern (AMD ordering, block triangular form).
 class SparseAnalysis {
  public:
@@ -56,6 +70,8 @@ class SparseLu {
   double Rcond();
   // Solves in place; rhs has size n.
   bool Solve(std::vector<Scalar>& rhs);
+  // Copies the factors out (complex only); reuses out's buffers when the sizes are unchanged.
+  bool Extract(LuFactors& out) const;
   bool factored() const { return numeric_ != nullptr; }
 
  private:
@@ -88,6 +104,8 @@ class ReferencePivotLu {
   bool Factor(const std::vector<std::complex<double>>& values);
   // Solves in place with the factors of the last member.
   bool Solve(std::vector<std::complex<double>>& rhs) { return last_->Solve(rhs); }
+  // The factors of the last member.
+  bool Extract(LuFactors& out) const { return last_->Extract(out); }
   double rcond() const { return rcond_; }       // of the last member
   bool fresh() const { return last_ == &fallback_; }  // the last member was factored afresh
 
