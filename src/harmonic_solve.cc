@@ -27,10 +27,10 @@ class OrderWorker {
       : net_(net), lu_(analysis), values_(static_cast<std::size_t>(net.pattern().nnz())),
         rhs_(static_cast<std::size_t>(net.bus_count())) {}
 
-  // Solves order h for every set: sets[s][h] into out[s].
-  void Solve(int h, const std::vector<const std::vector<std::vector<Injection>>*>& sets,
-             std::vector<HarmonicSolution>& out) {
-    for (HarmonicSolution& o : out) o.orders[h].order = h;
+  // Solves order h for every set with sources there, handing each solution to
+  // sink(set, voltage, summary).
+  template <typename Sink>
+  void Solve(int h, const std::vector<const std::vector<std::vector<Injection>>*>& sets, Sink sink) {
     const bool any = std::any_of(sets.begin(), sets.end(), [h](const auto* set) { return HasSource((*set)[h]); });
     if (!any) return;  // V(h) = 0 exactly
     if (!lu_.has_reference()) {
@@ -42,14 +42,10 @@ class OrderWorker {
     for (std::size_t k = 0; k < sets.size(); ++k) {
       const std::vector<Injection>& injections = (*sets[k])[h];
       if (!HasSource(injections)) continue;
-      OrderSummary& summary = out[k].orders[h];
-      summary.rcond = lu_.rcond();
-      summary.full_factor = lu_.fresh();
       std::fill(rhs_.begin(), rhs_.end(), Complex{});
       for (const Injection& i : injections) rhs_[i.bus] += i.current;
       lu_.Solve(rhs_);
-      std::copy(rhs_.begin(), rhs_.end(), out[k].voltage.begin() + static_cast<std::ptrdiff_t>(h) * out[k].bus_count);
-      summary.solved = true;
+      sink(k, std::span<const Complex>(rhs_), OrderSummary{h, true, lu_.fresh(), lu_.rcond()});
     }
   }
 
@@ -65,22 +61,18 @@ class OrderWorker {
   std::vector<Complex> rhs_;
 };
 
-std::vector<HarmonicSolution> SolveSets(const Network& net,
-                                        const std::vector<const std::vector<std::vector<Injection>>*>& sets,
-                                        int max_order, int threads) {
-  std::vector<HarmonicSolution> out(sets.size());
-  for (HarmonicSolution& o : out) {
-    o.bus_count = net.bus_count();
-    o.max_order = max_order;
-    o.voltage.assign(static_cast<std::size_t>(max_order + 1) * o.bus_count, Complex{});
-    o.orders.resize(static_cast<std::size_t>(max_order) + 1);
-  }
+// Orders 2..max_order over the workers; which worker solves an order does not change its result.
+template <typename Sink>
+void SolveOrders(const Network& net, const std::vector<const std::vector<std::vector<Injection>>*>& sets,
+                 int max_order, int threads, Sink sink) {
   const SparseAnalysis analysis(net.pattern());
-  // Orders 2..max_order; which worker solves an order does not change its result.
   ParallelFor(max_order - 1, threads,
               [&] { return std::make_unique<OrderWorker>(net, analysis); },
-              [&](OrderWorker& worker, int k) { worker.Solve(k + 2, sets, out); });
-  return out;
+              [&](OrderWorker& worker, int k) {
+                const int h = k + 2;
+                worker.Solve(h, sets, [&](std::size_t set, std::span<const Complex> v,
+                                          const OrderSummary& summary) { sink(h, set, v, summary); });
+              });
 }
 
 }  // namespace
@@ -88,15 +80,29 @@ std::vector<HarmonicSolution> SolveSets(const Network& net,
 HarmonicSolution SolveHarmonics(const Network& net,
                                 const std::vector<std::vector<Injection>>& injections,
                                 int max_order, int threads) {
-  return std::move(SolveSets(net, {&injections}, max_order, threads).front());
+  HarmonicSolution out;
+  out.bus_count = net.bus_count();
+  out.max_order = max_order;
+  out.voltage.assign(static_cast<std::size_t>(max_order + 1) * out.bus_count, Complex{});
+  out.orders.resize(static_cast<std::size_t>(max_order) + 1);
+  for (int h = 2; h <= max_order; ++h) out.orders[h].order = h;
+  SolveOrders(net, {&injections}, max_order, threads,
+              [&](int h, std::size_t, std::span<const Complex> v, const OrderSummary& summary) {
+                std::copy(v.begin(), v.end(), out.voltage.begin() + static_cast<std::ptrdiff_t>(h) * out.bus_count);
+                out.orders[h] = summary;
+              });
+  return out;
 }
 
-std::vector<HarmonicSolution> SolveHarmonicsBySource(
-    const Network& net, const std::vector<std::vector<std::vector<Injection>>>& sets,
-    int max_order, int threads) {
+void SolveHarmonicsBySource(const Network& net,
+                            const std::vector<std::vector<std::vector<Injection>>>& sets,
+                            int max_order, int threads, const SetVoltageVisitor& visit) {
   std::vector<const std::vector<std::vector<Injection>>*> pointers;
   for (const auto& set : sets) pointers.push_back(&set);
-  return SolveSets(net, pointers, max_order, threads);
+  SolveOrders(net, pointers, max_order, threads,
+              [&](int h, std::size_t set, std::span<const Complex> v, const OrderSummary&) {
+                visit(h, set, v);
+              });
 }
 
 }  // namespace overtone::internal

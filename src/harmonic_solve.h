@@ -2,6 +2,8 @@
 #ifndef OVERTONE_INTERNAL_HARMONIC_SOLVE_H_
 #define OVERTONE_INTERNAL_HARMONIC_SOLVE_H_
 
+#include <functional>
+#include <span>
 #include <vector>
 
 #include "network.h"
@@ -29,6 +31,10 @@ struct HarmonicSolution {
   std::vector<Complex> voltage;  // order-major: voltage[h * bus_count + bus], pu; h = 0 unused
   std::vector<OrderSummary> orders;  // index = order
   Complex at(int h, int bus) const { return voltage[static_cast<std::size_t>(h) * bus_count + bus]; }
+  // Every bus's voltage at order h.
+  std::span<const Complex> order(int h) const {
+    return {voltage.data() + static_cast<std::size_t>(h) * bus_count, static_cast<std::size_t>(bus_count)};
+  }
 };
 
 // Solves orders 2..max_order. injections[h] lists the currents at order h. Each worker thread
@@ -39,12 +45,18 @@ HarmonicSolution SolveHarmonics(const Network& network,
                                 const std::vector<std::vector<Injection>>& injections,
                                 int max_order, int threads);
 
-// The same for several sets of sources at once (sets[s][h]: set s's currents at order h), one
-// solution per set: each order is factored once and serves every set's right-hand side. By
-// linearity the solutions add up to the solve of all sets together.
-std::vector<HarmonicSolution> SolveHarmonicsBySource(
-    const Network& network, const std::vector<std::vector<std::vector<Injection>>>& sets,
-    int max_order, int threads);
+// Receives set `set`'s bus voltages at order h (pu).
+using SetVoltageVisitor = std::function<void(int h, std::size_t set, std::span<const Complex> voltage)>;
+
+// The same for several sets of sources at once (sets[s][h]: set s's currents at order h): each
+// order is factored once and serves every set's right-hand side, and each set's solution at that
+// order goes to `visit` instead of being kept, so memory does not grow with sets x orders x buses.
+// visit runs on the worker that solved order h, for the sets with sources at h in set order; calls
+// for different orders may run at the same time. By linearity the sets' solutions add up to the
+// solve of all sets together.
+void SolveHarmonicsBySource(const Network& network,
+                            const std::vector<std::vector<std::vector<Injection>>>& sets,
+                            int max_order, int threads, const SetVoltageVisitor& visit);
 
 }  // namespace overtone::internal
 

@@ -1,6 +1,9 @@
 // src/json_writer.h — a small streaming JSON writer (internal): no in-memory tree, so large
 // studies write in one pass. Numbers use the shortest form that reads back exactly; a NaN or
-// infinity is a broken invariant upstream and is written as null.
+// infinity is a broken invariant upstream and is written as null. Text is gathered in a buffer
+// (formatting with fmt straight into it, no string per number) and goes to the stream every
+// 64 KiB and whenever the outermost value is complete, so the caller may write to the stream
+// after a document ends.
 #ifndef OVERTONE_INTERNAL_JSON_WRITER_H_
 #define OVERTONE_INTERNAL_JSON_WRITER_H_
 
@@ -10,6 +13,8 @@
 #include <string_view>
 #include <vector>
 
+#include <iterator>
+
 #include <fmt/format.h>
 
 namespace overtone::internal {
@@ -17,26 +22,29 @@ namespace overtone::internal {
 class JsonWriter {
  public:
   explicit JsonWriter(std::ostream& out) : out_(out) {}
+  ~JsonWriter() { Flush(); }
+  JsonWriter(const JsonWriter&) = delete;
+  JsonWriter& operator=(const JsonWriter&) = delete;
 
-  JsonWriter& BeginObject() { Prefix(); out_ << '{'; first_.push_back(true); return *this; }
-  JsonWriter& EndObject() { first_.pop_back(); out_ << '}'; return *this; }
-  JsonWriter& BeginArray() { Prefix(); out_ << '['; first_.push_back(true); return *this; }
-  JsonWriter& EndArray() { first_.pop_back(); out_ << ']'; return *this; }
+  JsonWriter& BeginObject() { Prefix(); buf_.push_back('{'); first_.push_back(true); return *this; }
+  JsonWriter& EndObject() { first_.pop_back(); buf_.push_back('}'); return Done(); }
+  JsonWriter& BeginArray() { Prefix(); buf_.push_back('['); first_.push_back(true); return *this; }
+  JsonWriter& EndArray() { first_.pop_back(); buf_.push_back(']'); return Done(); }
   JsonWriter& Key(std::string_view key) {
     Prefix();
     WriteString(key);
-    out_ << ':';
+    buf_.push_back(':');
     after_key_ = true;
     return *this;
   }
   JsonWriter& Value(double v) {
     Prefix();
-    if (std::isfinite(v)) out_ << fmt::format("{}", v); else out_ << "null";
-    return *this;
+    if (std::isfinite(v)) fmt::format_to(std::back_inserter(buf_), "{}", v); else Append("null");
+    return Done();
   }
-  JsonWriter& Value(int v) { Prefix(); out_ << v; return *this; }
-  JsonWriter& Value(bool v) { Prefix(); out_ << (v ? "true" : "false"); return *this; }
-  JsonWriter& Value(std::string_view v) { Prefix(); WriteString(v); return *this; }
+  JsonWriter& Value(int v) { Prefix(); fmt::format_to(std::back_inserter(buf_), "{}", v); return Done(); }
+  JsonWriter& Value(bool v) { Prefix(); Append(v ? "true" : "false"); return Done(); }
+  JsonWriter& Value(std::string_view v) { Prefix(); WriteString(v); return Done(); }
   JsonWriter& Value(const char* v) { return Value(std::string_view(v)); }
   template <typename T>
   JsonWriter& Field(std::string_view key, const T& v) { Key(key); return Value(v); }
@@ -47,29 +55,42 @@ class JsonWriter {
   }
 
  private:
+  static constexpr std::size_t kFlushBytes = 1 << 16;
+
   void Prefix() {
     if (after_key_) { after_key_ = false; return; }
     if (first_.empty()) return;
-    if (!first_.back()) out_ << ',';
+    if (!first_.back()) buf_.push_back(',');
     first_.back() = false;
   }
+  JsonWriter& Done() {
+    if (first_.empty() || buf_.size() >= kFlushBytes) Flush();
+    return *this;
+  }
+  void Flush() {
+    out_.write(buf_.data(), static_cast<std::streamsize>(buf_.size()));
+    buf_.clear();
+  }
+  void Append(std::string_view s) { buf_.append(s.data(), s.data() + s.size()); }
   void WriteString(std::string_view s) {
-    out_ << '"';
+    buf_.push_back('"');
     for (unsigned char c : s) {
       switch (c) {
-        case '"': out_ << "\\\""; break;
-        case '\\': out_ << "\\\\"; break;
-        case '\n': out_ << "\\n"; break;
-        case '\t': out_ << "\\t"; break;
-        case '\r': out_ << "\\r"; break;
+        case '"': Append("\\\""); break;
+        case '\\': Append("\\\\"); break;
+        case '\n': Append("\\n"); break;
+        case '\t': Append("\\t"); break;
+        case '\r': Append("\\r"); break;
         default:
-          if (c < 0x20) out_ << fmt::format("\\u{:04x}", c); else out_ << static_cast<char>(c);
+          if (c < 0x20) fmt::format_to(std::back_inserter(buf_), "\\u{:04x}", c);
+          else buf_.push_back(static_cast<char>(c));
       }
     }
-    out_ << '"';
+    buf_.push_back('"');
   }
 
   std::ostream& out_;
+  fmt::memory_buffer buf_;
   std::vector<bool> first_;
   bool after_key_ = false;
 };

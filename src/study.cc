@@ -1,9 +1,11 @@
 // src/study.cc — the study pipeline: network, load flow, spectra, per-order solves, indices.
 #include "overtone/study.h"
 
+#include <chrono>
 #include <cmath>
 #include <numbers>
-#include <queue>
+#include <numeric>
+#include <span>
 
 #include <fmt/format.h>
 
@@ -59,29 +61,26 @@ struct HarmonicSource {
   std::vector<std::vector<Injection>> injections;  // by order
 };
 
-// Buses reachable from `start` over branches without passing `blocked`.
-bool ReachesSource(const Network& net, int start, int blocked) {
-  std::vector<char> seen(static_cast<std::size_t>(net.bus_count()), 0);
-  std::vector<char> has_source(seen.size(), 0);
-  for (const auto& s : net.sources()) has_source[s.bus] = 1;
-  std::queue<int> todo;
-  todo.push(start);
-  seen[start] = 1;
-  seen[blocked] = 1;
-  while (!todo.empty()) {
-    const int bus = todo.front();
-    todo.pop();
-    if (has_source[bus]) return true;
-    for (const auto& b : net.branches()) {
-      for (auto [here, there] : {std::pair{b.from, b.to}, std::pair{b.to, b.from}}) {
-        if (here == bus && !seen[there]) {
-          seen[there] = 1;
-          todo.push(there);
-        }
-      }
-    }
+// For every bus, whether it reaches a supply or generator bus over branches without passing
+// `blocked` (whose own sources do not count): components of the network with `blocked` removed,
+// by union-find, linear in the number of branches.
+std::vector<char> ReachesSourceAvoiding(const Network& net, int blocked) {
+  std::vector<int> parent(static_cast<std::size_t>(net.bus_count()));
+  std::iota(parent.begin(), parent.end(), 0);
+  const auto root = [&parent](int i) {
+    while (parent[i] != i) i = parent[i] = parent[parent[i]];  // path halving
+    return i;
+  };
+  for (const auto& b : net.branches()) {
+    if (b.from != blocked && b.to != blocked) parent[root(b.from)] = root(b.to);
   }
-  return false;
+  std::vector<char> source_in(parent.size(), 0);
+  for (const auto& s : net.sources()) {
+    if (s.bus != blocked) source_in[root(s.bus)] = 1;
+  }
+  std::vector<char> reaches(parent.size(), 0);
+  for (int i = 0; i < net.bus_count(); ++i) reaches[i] = i != blocked && source_in[root(i)];
+  return reaches;
 }
 
 std::string PccBus(const Plant& plant) {
@@ -89,11 +88,12 @@ std::string PccBus(const Plant& plant) {
   return !plant.supplies.empty() ? plant.supplies.front().bus : plant.generators.front().bus;
 }
 
-// Branch current at its from end at order h (pu of the from bus's base current).
+// Branch current at its from end at order h (pu of the from bus's base current), from the bus
+// voltages `v` at that order.
 Complex BranchCurrentAt(const Network& net, const internal::BranchRef& br,
-                        const internal::HarmonicSolution& sol, int h) {
+                        std::span<const Complex> v, int h) {
   const internal::BranchStamp st = net.Stamp(br, h, internal::SequenceOf(h));
-  return st.yff * sol.at(h, br.from) + st.yft * sol.at(h, br.to);
+  return st.yff * v[br.from] + st.yft * v[br.to];
 }
 
 // The current entering the pcc bus p from the utility side at order h (pu): of the whole solve,
@@ -102,25 +102,27 @@ class PccMeter {
  public:
   PccMeter(const Network& net, int p) : net_(net), p_(p) {
     // The branches at the pcc that lead toward a supply without passing it.
+    const std::vector<char> reaches = ReachesSourceAvoiding(net, p);
     for (const auto& b : net.branches()) {
-      if ((b.from == p || b.to == p) && ReachesSource(net, b.from == p ? b.to : b.from, p)) {
+      if ((b.from == p || b.to == p) && reaches[b.from == p ? b.to : b.from]) {
         utility_side_.push_back(&b);
       }
     }
   }
 
-  Complex At(const internal::HarmonicSolution& sol, int h, const HarmonicSource* source = nullptr) const {
+  // From the bus voltages `v` at order h.
+  Complex At(std::span<const Complex> v, int h, const HarmonicSource* source = nullptr) const {
     Complex current;
     const internal::Sequence seq = internal::SequenceOf(h);
     for (const auto& s : net_.sources()) {
       if (s.bus != p_) continue;
       const bool own = !source || (source->background_of && source->background_of == s.supply);
-      current += ((own ? SourceEmfAt(net_, s, h) : Complex{}) - sol.at(h, p_)) / net_.SourceImpedance(s, h);
+      current += ((own ? SourceEmfAt(net_, s, h) : Complex{}) - v[p_]) / net_.SourceImpedance(s, h);
     }
     for (const internal::BranchRef* branch : utility_side_) {
       const internal::BranchRef& b = *branch;
       const internal::BranchStamp st = net_.Stamp(b, h, seq);
-      const Complex vf = sol.at(h, b.from), vt = sol.at(h, b.to);
+      const Complex vf = v[b.from], vt = v[b.to];
       current -= b.from == p_ ? st.yff * vf + st.yft * vt : st.ytf * vf + st.ytt * vt;
     }
     return current;
@@ -180,29 +182,34 @@ PccResult AssessPcc(const Plant& plant, const Network& net, Spectrum current,
 
 // Non-vector summation (PLANT-FORMAT.md "Conventions"): every harmonic magnitude of buses,
 // branches and the pcc current recombined from each source's own solution; angles set to 0.
+// Each source's solution at an order is folded into per-order sums of terms as soon as it is
+// solved, so memory stays that of one result whatever the number of sources.
 void SumBySource(Summation rule, const Network& net, const PccMeter& meter, int pcc_bus,
                  const std::vector<HarmonicSource>& sources, int threads, StudyResult& result) {
   std::vector<std::vector<std::vector<Injection>>> sets;
   for (const HarmonicSource& s : sources) sets.push_back(s.injections);
   const int max_order = result.study.max_order;
-  const std::vector<internal::HarmonicSolution> sols =
-      internal::SolveHarmonicsBySource(net, sets, max_order, threads);
-  std::vector<Complex> parts(sols.size());
-  const auto combine = [&](int h, const auto& part_of) {
-    for (std::size_t k = 0; k < sols.size(); ++k) parts[k] = part_of(k);
-    return Complex(internal::CombineSources(rule, h, parts));
-  };
+  const std::size_t buses = static_cast<std::size_t>(net.bus_count()), branches = net.branches().size();
+  const std::size_t row = buses + branches + 1;  // per order: buses, branches, the pcc
+  std::vector<double> sums(static_cast<std::size_t>(max_order + 1) * row, 0.0);
+  // Order h's row is written only by the worker solving h, sources in a fixed order.
+  internal::SolveHarmonicsBySource(net, sets, max_order, threads,
+      [&](int h, std::size_t k, std::span<const Complex> v) {
+        double* sum = sums.data() + static_cast<std::size_t>(h) * row;
+        for (std::size_t i = 0; i < buses; ++i) sum[i] += internal::SourceTerm(rule, h, v[i]);
+        for (std::size_t b = 0; b < branches; ++b) {
+          sum[buses + b] += internal::SourceTerm(rule, h, BranchCurrentAt(net, net.branches()[b], v, h));
+        }
+        sum[buses + branches] += internal::SourceTerm(rule, h, meter.At(v, h, &sources[k]));
+      });
   for (int h = 2; h <= max_order; ++h) {
-    for (int i = 0; i < net.bus_count(); ++i) {
-      result.buses[i].voltage_pu.by_order[h] = combine(h, [&](std::size_t k) { return sols[k].at(h, i); });
+    const double* sum = sums.data() + static_cast<std::size_t>(h) * row;
+    const auto combined = [&](std::size_t i) { return Complex(internal::CombinedMagnitude(rule, h, sum[i])); };
+    for (std::size_t i = 0; i < buses; ++i) result.buses[i].voltage_pu.by_order[h] = combined(i);
+    for (std::size_t b = 0; b < branches; ++b) {
+      result.branches[b].current_a.by_order[h] = net.BaseAmps(net.branches()[b].from) * combined(buses + b);
     }
-    for (std::size_t b = 0; b < net.branches().size(); ++b) {
-      const internal::BranchRef& br = net.branches()[b];
-      result.branches[b].current_a.by_order[h] = net.BaseAmps(br.from) *
-          combine(h, [&](std::size_t k) { return BranchCurrentAt(net, br, sols[k], h); });
-    }
-    result.pcc.current_a.by_order[h] = net.BaseAmps(pcc_bus) *
-        combine(h, [&](std::size_t k) { return meter.At(sols[k], h, &sources[k]); });
+    result.pcc.current_a.by_order[h] = net.BaseAmps(pcc_bus) * combined(buses + branches);
   }
   for (BusResult& b : result.buses) {
     b.indices = internal::ComputeIndices(b.voltage_pu.by_order, internal::kNegligibleVoltagePu);
@@ -211,6 +218,21 @@ void SumBySource(Summation rule, const Network& net, const PccMeter& meter, int 
     b.indices = internal::ComputeIndices(b.current_a.by_order, internal::kNegligibleCurrentA);
   }
 }
+
+// Adds the wall-clock time since the previous lap to a field of the caller's StudyTimings.
+class PhaseClock {
+ public:
+  explicit PhaseClock(StudyTimings* timings) : timings_(timings) {}
+  void Lap(double StudyTimings::*field) {
+    const auto now = std::chrono::steady_clock::now();
+    if (timings_) timings_->*field += std::chrono::duration<double>(now - last_).count();
+    last_ = now;
+  }
+
+ private:
+  StudyTimings* timings_;
+  std::chrono::steady_clock::time_point last_ = std::chrono::steady_clock::now();
+};
 
 }  // namespace
 
@@ -227,6 +249,7 @@ const std::vector<std::string>& StandardCautions() {
 }
 
 StudyResult RunStudy(const Plant& plant, const StudyOptions& options) {
+  PhaseClock clock(options.timings);
   const internal::LimitProfile profile = internal::LoadLimitProfile(plant.study.limits);
   const Network net(plant);
   const int max_order = plant.study.max_order;
@@ -238,6 +261,7 @@ StudyResult RunStudy(const Plant& plant, const StudyOptions& options) {
   const internal::OperatingPoint op = internal::SolveOperatingPoint(plant, net, options.threads, result.warnings);
   const internal::LoadFlowResult& flow = op.flow;
   result.load_flow_iterations = flow.iterations;
+  clock.Lap(&StudyTimings::operating_point_s);
 
   // Sources: drive groups (drawn current, so injected with a minus sign) and supply backgrounds.
   const std::size_t orders = static_cast<std::size_t>(max_order) + 1;
@@ -290,7 +314,7 @@ StudyResult RunStudy(const Plant& plant, const StudyOptions& options) {
     r.from = net.bus(br.from).name;
     r.to = net.bus(br.to).name;
     std::vector<Complex> current(orders);
-    for (int h = 1; h <= max_order; ++h) current[h] = BranchCurrentAt(net, br, sol, h);
+    for (int h = 1; h <= max_order; ++h) current[h] = BranchCurrentAt(net, br, sol.order(h), h);
     r.current_a = Scaled(current, net.BaseAmps(br.from));
     r.indices = internal::ComputeIndices(r.current_a.by_order, internal::kNegligibleCurrentA,
                                            /*with_peak=*/false);  // not reported for branches
@@ -323,17 +347,21 @@ StudyResult RunStudy(const Plant& plant, const StudyOptions& options) {
   const int pcc_bus = net.BusIndex(PccBus(plant));
   const PccMeter meter(net, pcc_bus);
   std::vector<Complex> pcc_current(orders);
-  for (int h = 1; h <= max_order; ++h) pcc_current[h] = meter.At(sol, h);
+  for (int h = 1; h <= max_order; ++h) pcc_current[h] = meter.At(sol.order(h), h);
   result.pcc.current_a = Scaled(pcc_current, net.BaseAmps(pcc_bus));
   if (plant.study.summation != Summation::kVector) {
     SumBySource(plant.study.summation, net, meter, pcc_bus, sources, options.threads, result);
   }
+  clock.Lap(&StudyTimings::harmonic_solves_s);
   result.pcc = AssessPcc(plant, net, std::move(result.pcc.current_a), result.warnings);
   // Capacitor duty, transformer derating and resonance screening (docs/resonance.md).
   result.capacitors = internal::CapacitorDuties(plant, result.buses);
   result.transformers = internal::TransformerDeratings(plant, result.branches);
+  clock.Lap(&StudyTimings::assessments_s);
   if (options.scan) result.resonances = internal::ScreenPresentState(plant, result, options.threads);
+  clock.Lap(&StudyTimings::scan_s);
   internal::AssessLimits(profile, result);
+  clock.Lap(&StudyTimings::assessments_s);
   return result;
 }
 

@@ -1,22 +1,46 @@
-// tools/bench.cc — timings behind tools/bench: the bridge model per distinct group, and the cost
-// that bridge groups add to a study of a plant where every group sees its own bus impedance.
+// tools/bench.cc — timings behind tools/bench: the bridge model per distinct group, and the phases
+// of a study of one plant file, with a plain per-order full LU on the same matrices for the ratio.
+//
+//   overtone_bench bridges                 markdown rows: milliseconds per distinct bridge group
+//   overtone_bench study PLANT.yaml JSON   one markdown row: phase seconds, peak memory, and the
+//                                          per-order factor+solve time of both LU paths
+//   overtone_bench scan PLANT.yaml         one markdown row: screening of the present step state
+#include <sys/resource.h>
+
+#include <Eigen/SparseCore>
+#include <Eigen/SparseLU>
+
 #include <chrono>
 #include <cmath>
 #include <cstdio>
+#include <fstream>
 #include <numbers>
 #include <string>
+#include <vector>
 
 #include "bridge.h"
+#include "network.h"
+#include "overtone/load.h"
+#include "overtone/report.h"
 #include "overtone/study.h"
+#include "scan.h"
+#include "sparse_lu.h"
 
 namespace {
 
 using Clock = std::chrono::steady_clock;
 using overtone::internal::BridgeCircuit;
 using overtone::internal::BridgeParameters;
+using overtone::internal::Complex;
 
 double Seconds(Clock::time_point since) {
   return std::chrono::duration<double>(Clock::now() - since).count();
+}
+
+double PeakMemoryMiB() {
+  rusage usage{};
+  getrusage(RUSAGE_SELF, &usage);
+  return usage.ru_maxrss / 1024.0;  // Linux reports kilobytes
 }
 
 // Milliseconds per SolveBridge call over `n` slightly different circuits (no cache hits).
@@ -35,70 +59,119 @@ double BridgeMilliseconds(BridgeCircuit circuit, double reactor, int n) {
   return 1e3 * Seconds(start) / n;
 }
 
-// An MV bus feeding `groups` LV buses, each through its own transformer (so its own impedance)
-// with one drive group; `bridge` selects a computed front end or the same group as a table.
-overtone::Plant SpreadPlant(int groups, bool bridge) {
-  overtone::Plant p;
-  p.study.name = "bench";
-  p.buses.push_back({"MV", 13.8e3, {}});
-  overtone::Supply s;
-  s.name = "U";
-  s.bus = "MV";
-  s.short_circuit_va = 500e6;
-  p.supplies.push_back(s);
-  for (int k = 0; k < groups; ++k) {
-    const std::string bus = "LV" + std::to_string(k);
-    p.buses.push_back({bus, 480.0, {}});
-    overtone::Transformer t;
-    t.name = "T" + std::to_string(k);
-    t.from = "MV";
-    t.to = bus;
-    t.rating_va = 500e3 + 100.0 * k;
-    t.impedance = 0.0575;
-    t.connection = {"Dyn11", 11, false, true, true, false};
-    p.transformers.push_back(t);
-    overtone::Drive d;
-    d.name = "D" + std::to_string(k);
-    d.bus = bus;
-    d.power_w = 15e3;
-    d.loading = 0.8;
-    if (bridge) {
-      d.front_end = overtone::FrontEnd::kDiodeCapacitor;
-      d.line_reactor = {overtone::ReactorSpec::Kind::kFraction, 0.03};
-    } else {
-      d.front_end = overtone::FrontEnd::kMeasured;
-      d.harmonics = {{5, 35, 0, {}}, {7, 12, 0, {}}, {11, 7, 0, {}}, {13, 4, 0, {}}};
-    }
-    p.drives.push_back(d);
-  }
-  return p;
+int Bridges() {
+  std::printf("| diode-capacitor bridge, 3 %% reactor | %.2f ms |\n",
+              BridgeMilliseconds(BridgeCircuit::kSixPulseCapacitor, 0.03, 40));
+  std::printf("| diode-capacitor bridge, no reactor | %.2f ms |\n",
+              BridgeMilliseconds(BridgeCircuit::kSixPulseCapacitor, 0.0, 40));
+  std::printf("| current-stiff bridge | %.2f ms |\n",
+              BridgeMilliseconds(BridgeCircuit::kSixPulseStiff, 0.03, 40));
+  return 0;
 }
 
-double StudySeconds(int groups, bool bridge) {
-  const overtone::Plant plant = SpreadPlant(groups, bridge);
+// Seconds per order to fill Y(h), factor it and solve one right-hand side, over the orders
+// 2..max_order that carry drive currents (not the triplens: format 1 has no zero-sequence
+// sources, and a zero-sequence network cut by delta windings is singular), on one thread: the study's path (one symbolic analysis, a reference order factored
+// with pivoting, the others refactored on its pivots) against a plain full sparse LU of every
+// order (Eigen's SparseLU: ordering, symbolic and numeric factorization each time).
+struct LuComparison {
+  double refactor_s = 0.0;
+  double full_lu_s = 0.0;
+};
+
+LuComparison CompareLu(const overtone::internal::Network& net, int max_order) {
+  using namespace overtone::internal;
+  const CscPattern& p = net.pattern();
+  std::vector<Complex> values(static_cast<std::size_t>(p.nnz())), rhs(static_cast<std::size_t>(p.n));
+  const auto reset_rhs = [&] {
+    std::fill(rhs.begin(), rhs.end(), Complex{});
+    rhs[static_cast<std::size_t>(p.n) - 1] = 1.0;
+  };
+  LuComparison out;
+  std::vector<int> orders;
+  for (int h = 2; h <= max_order; ++h) {
+    if (h % 3 != 0) orders.push_back(h);
+  }
+
+  auto start = Clock::now();
+  const SparseAnalysis analysis(p);
+  ReferencePivotLu lu(analysis);
+  for (int h : orders) {
+    net.Fill(h, SequenceOf(h), Shunts::kHarmonic, values);
+    if (!lu.has_reference() && !lu.SetReference(values)) std::abort();
+    if (!lu.Factor(values)) std::abort();
+    reset_rhs();
+    lu.Solve(rhs);
+  }
+  out.refactor_s = Seconds(start) / static_cast<double>(orders.size());
+
+  start = Clock::now();
+  Eigen::SparseLU<Eigen::SparseMatrix<Complex, Eigen::ColMajor, int>, Eigen::COLAMDOrdering<int>> eigen_lu;
+  for (int h : orders) {
+    net.Fill(h, SequenceOf(h), Shunts::kHarmonic, values);
+    const Eigen::Map<const Eigen::SparseMatrix<Complex, Eigen::ColMajor, int>> y(
+        p.n, p.n, p.nnz(), p.col_ptr.data(), p.row_idx.data(), values.data());
+    eigen_lu.compute(y);
+    if (eigen_lu.info() != Eigen::Success) std::abort();
+    reset_rhs();
+    const Eigen::VectorXcd x = eigen_lu.solve(Eigen::Map<const Eigen::VectorXcd>(rhs.data(), p.n));
+    if (!std::isfinite(std::abs(x[0]))) std::abort();
+  }
+  out.full_lu_s = Seconds(start) / static_cast<double>(orders.size());
+  return out;
+}
+
+// | buses | drive groups | load | operating point | per-order solves | assessments | output |
+// total | per bus | peak memory | per order: refactor | per order: full LU | ratio |
+int Study(const std::string& plant_path, const std::string& json_path) {
+  auto start = Clock::now();
+  const overtone::Plant plant = overtone::LoadPlant(plant_path);
+  const double load_s = Seconds(start);
+  overtone::StudyTimings t;
   overtone::StudyOptions options;
   options.scan = false;
-  const auto start = Clock::now();
-  overtone::RunStudy(plant, options);
-  return Seconds(start);
+  options.timings = &t;
+  start = Clock::now();
+  const overtone::StudyResult result = overtone::RunStudy(plant, options);
+  const double study_s = Seconds(start);
+  start = Clock::now();
+  overtone::WriteFileAtomically(json_path, [&](std::ostream& out) { overtone::WriteStudyJson(result, out); });
+  const double output_s = Seconds(start);
+  const double memory = PeakMemoryMiB();  // before the comparison below adds its own
+  const overtone::internal::Network net(plant);
+  const LuComparison lu = CompareLu(net, plant.study.max_order);
+  const double total_s = load_s + study_s + output_s;
+  std::printf("| %zu | %zu | %.3f | %.3f | %.3f | %.3f | %.3f | **%.3f** | %.0f us | %.0f MiB | %.2f ms "
+              "| %.2f ms | %.1f |\n",
+              plant.buses.size(), plant.drives.size(), load_s, t.operating_point_s,
+              t.harmonic_solves_s, t.assessments_s, output_s, total_s,
+              1e6 * total_s / static_cast<double>(plant.buses.size()), memory,
+              1e3 * lu.refactor_s, 1e3 * lu.full_lu_s, lu.full_lu_s / lu.refactor_s);
+  return 0;
+}
+
+// | buses | monitored buses | grid points | peaks | seconds |
+int Scan(const std::string& plant_path) {
+  const overtone::Plant plant = overtone::LoadPlant(plant_path);
+  overtone::StudyTimings t;
+  overtone::StudyOptions options;
+  options.timings = &t;
+  const overtone::StudyResult result = overtone::RunStudy(plant, options);
+  const std::size_t monitored = overtone::internal::DefaultMonitoredBuses(plant, result.pcc.bus).size();
+  overtone::ScanOptions grid;
+  grid.to_order = plant.study.max_order;
+  std::printf("| %zu | %zu | %d | %zu | **%.3f** |\n", plant.buses.size(), monitored,
+              grid.point_count(), result.resonances.size(), t.scan_s);
+  return 0;
 }
 
 }  // namespace
 
-int main() {
-  std::printf("| measurement | value |\n|---|---|\n");
-  std::printf("| diode-capacitor bridge, 3 %% reactor, one distinct group (1 core) | %.2f ms |\n",
-              BridgeMilliseconds(BridgeCircuit::kSixPulseCapacitor, 0.03, 40));
-  std::printf("| diode-capacitor bridge, no reactor, one distinct group (1 core) | %.2f ms |\n",
-              BridgeMilliseconds(BridgeCircuit::kSixPulseCapacitor, 0.0, 40));
-  std::printf("| current-stiff bridge, one distinct group (1 core) | %.2f ms |\n",
-              BridgeMilliseconds(BridgeCircuit::kSixPulseStiff, 0.03, 40));
-  for (int groups : {200, 2000}) {
-    const double table = StudySeconds(groups, false);
-    const double bridge = StudySeconds(groups, true);
-    std::printf("| study, %d buses, %d table-spectrum groups (all cores) | %.3f s |\n", groups + 1,
-                groups, table);
-    std::printf("| study, %d buses, %d bridge groups each at its own impedance (all cores) | %.3f s "
-                "(adds %.3f s) |\n", groups + 1, groups, bridge, bridge - table);
-  }
+int main(int argc, char** argv) {
+  const std::string mode = argc > 1 ? argv[1] : "";
+  if (mode == "bridges" && argc == 2) return Bridges();
+  if (mode == "study" && argc == 4) return Study(argv[2], argv[3]);
+  if (mode == "scan" && argc == 3) return Scan(argv[2]);
+  std::fprintf(stderr, "usage: overtone_bench bridges | study PLANT.yaml OUT.json | scan PLANT.yaml\n");
+  return 2;
 }

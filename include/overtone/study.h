@@ -17,10 +17,19 @@ namespace overtone {
 
 using Phasor = std::complex<double>;
 
+// Wall-clock seconds of a study's phases, for tools/bench.
+struct StudyTimings {
+  double operating_point_s = 0.0;  // load flow with the drive groups' spectra
+  double harmonic_solves_s = 0.0;  // per-order solves, bus and branch spectra, summation
+  double assessments_s = 0.0;      // pcc, capacitor duty, transformer derating, limits
+  double scan_s = 0.0;             // resonance screening of the present step state
+};
+
 struct StudyOptions {
   int threads = 0;  // worker threads for the per-order solves; 0 = all cores
   bool scan = true;  // resonance screening of the present step state (`--no-scan` clears it)
   bool keep_waveforms = false;  // keep one period of each bridge group's waveforms
+  StudyTimings* timings = nullptr;  // when set, filled with the phases' wall-clock times
 };
 
 // A quantity at every order 1..max_order; index 0 is unused so that at(h) reads naturally.
