@@ -18,33 +18,41 @@ Command AddCompareCommand(CLI::App& app) {
   };
   auto args = std::make_shared<Args>();
   CLI::App* cmd = app.add_subcommand(
-      "compare", "Run two cases (base, proposed) and show what changes: distortion, violations, resonances");
+      "compare",
+      "Run two cases (base, proposed) and show what changes: distortion, violations, resonances");
   cmd->add_option("BASE", args->base, "plant file of the base case")->required();
-  cmd->add_option("PROPOSED", args->proposed, "plant file of the proposed case (often `extends: BASE`)")->required();
-  cmd->add_option("--json", args->json, "write the comparison as JSON to FILE ('-' for standard output)")
+  cmd->add_option("PROPOSED", args->proposed,
+                  "plant file of the proposed case (often `extends: BASE`)")
+      ->required();
+  cmd->add_option("--json", args->json,
+                  "write the comparison as JSON to FILE ('-' for standard output)")
       ->type_name("FILE");
-  cmd->add_option("--threads", args->threads, "worker threads for the harmonic orders (0 = all cores)")
+  cmd->add_option("--threads", args->threads,
+                  "worker threads for the harmonic orders (0 = all cores)")
       ->check(CLI::Range(0, 1024));
-  cmd->add_flag("--no-color", args->no_color, "no colour in the terminal tables (also when NO_COLOR is set)");
+  cmd->add_flag("--no-color", args->no_color,
+                "no colour in the terminal tables (also when NO_COLOR is set)");
   return {cmd, [args]() {
-    // Both plants are loaded before either is solved, so input errors in both files are found first.
-    const Plant base_plant = LoadPlant(args->base);
-    const Plant proposed_plant = LoadPlant(args->proposed);
-    StudyOptions options;
-    options.threads = args->threads;
-    const StudyResult base = RunStudy(base_plant, options);
-    const StudyResult proposed = RunStudy(proposed_plant, options);
-    const Comparison c = CompareStudies(base, args->base, proposed, args->proposed);
-    if (args->json == "-") {
-      WriteComparisonJson(c, std::cout);
-      return kExitOk;
-    }
-    if (!args->json.empty()) {
-      WriteFileAtomically(args->json, [&](std::ostream& out) { WriteComparisonJson(c, out); });
-    }
-    PrintComparison(c, std::cout, WantColour(args->no_color));
-    return kExitOk;
-  }};
+            // Both plants are loaded before either is solved, so input errors in both files are
+            // found first.
+            const Plant base_plant = LoadPlant(args->base);
+            const Plant proposed_plant = LoadPlant(args->proposed);
+            StudyOptions options;
+            options.threads = args->threads;
+            const StudyResult base = RunStudy(base_plant, options);
+            const StudyResult proposed = RunStudy(proposed_plant, options);
+            const Comparison c = CompareStudies(base, args->base, proposed, args->proposed);
+            if (args->json == "-") {
+              WriteComparisonJson(c, std::cout);
+              return kExitOk;
+            }
+            if (!args->json.empty()) {
+              WriteFileAtomically(args->json,
+                                  [&](std::ostream& out) { WriteComparisonJson(c, out); });
+            }
+            PrintComparison(c, std::cout, WantColour(args->no_color));
+            return kExitOk;
+          }};
 }
 
 }  // namespace overtone::app

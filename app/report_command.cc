@@ -20,27 +20,33 @@ Command AddReportCommand(CLI::App& app) {
   CLI::App* cmd = app.add_subcommand(
       "report", "Run the study and write report.md, report.html (inline charts) and CSV tables");
   cmd->add_option("PLANT", args->plant, "plant file (YAML, format 1)")->required();
-  cmd->add_option("-o,--out", args->dir, "output directory (created if needed)")->required()->type_name("DIR");
+  cmd->add_option("-o,--out", args->dir, "output directory (created if needed)")
+      ->required()
+      ->type_name("DIR");
   cmd->add_option("--against", args->against,
                   "also run BASE and add a comparison with it (PLANT is the proposed case)")
       ->type_name("BASE");
-  cmd->add_option("--threads", args->threads, "worker threads for the harmonic orders (0 = all cores)")
+  cmd->add_option("--threads", args->threads,
+                  "worker threads for the harmonic orders (0 = all cores)")
       ->check(CLI::Range(0, 1024));
-  cmd->add_flag("--fail-on-violation", args->fail_on_violation,
-                "exit with status 3 when the limit assessment finds violations (the report is written)");
+  cmd->add_flag(
+      "--fail-on-violation", args->fail_on_violation,
+      "exit with status 3 when the limit assessment finds violations (the report is written)");
   return {cmd, [args]() {
-    const Plant plant = LoadPlant(args->plant);
-    const std::optional<Plant> base = args->against.empty() ? std::nullopt
-                                                             : std::optional<Plant>(LoadPlant(args->against));
-    StudyOptions options;
-    options.threads = args->threads;
-    // Everything is computed before the first byte is written: a failure leaves no partial output.
-    const ReportInputs inputs = PrepareReport(plant, options, base ? &*base : nullptr);
-    WriteReport(inputs, args->dir);
-    std::cout << "wrote " << args->dir << "/report.md and report.html\n";
-    const bool violated = !inputs.result.assessment.violations.empty();
-    return args->fail_on_violation && violated ? kExitViolation : kExitOk;
-  }};
+            const Plant plant = LoadPlant(args->plant);
+            const std::optional<Plant> base = args->against.empty()
+                                                  ? std::nullopt
+                                                  : std::optional<Plant>(LoadPlant(args->against));
+            StudyOptions options;
+            options.threads = args->threads;
+            // Everything is computed before the first byte is written: a failure leaves no partial
+            // output.
+            const ReportInputs inputs = PrepareReport(plant, options, base ? &*base : nullptr);
+            WriteReport(inputs, args->dir);
+            std::cout << "wrote " << args->dir << "/report.md and report.html\n";
+            const bool violated = !inputs.result.assessment.violations.empty();
+            return args->fail_on_violation && violated ? kExitViolation : kExitOk;
+          }};
 }
 
 }  // namespace overtone::app

@@ -11,15 +11,16 @@ namespace overtone::app {
 
 Command AddCheckCommand(CLI::App& app) {
   auto plant_path = std::make_shared<std::string>();
-  CLI::App* cmd = app.add_subcommand("check", "Validate a plant file and print a one-screen summary");
+  CLI::App* cmd =
+      app.add_subcommand("check", "Validate a plant file and print a one-screen summary");
   cmd->add_option("PLANT", *plant_path, "plant file (YAML, format 1)")->required();
   return {cmd, [plant_path]() {
-    const Plant plant = LoadPlant(*plant_path);
-    CheckLimitProfile(plant);
-    PrintPlantSummary(plant, std::cout);
-    std::cout << "no errors found\n";
-    return kExitOk;
-  }};
+            const Plant plant = LoadPlant(*plant_path);
+            CheckLimitProfile(plant);
+            PrintPlantSummary(plant, std::cout);
+            std::cout << "no errors found\n";
+            return kExitOk;
+          }};
 }
 
 Command AddStudyCommand(CLI::App& app) {
@@ -34,34 +35,40 @@ Command AddStudyCommand(CLI::App& app) {
   CLI::App* cmd = app.add_subcommand(
       "study", "Load flow, drive spectra and harmonic solve: bus distortion tables");
   cmd->add_option("PLANT", args->plant, "plant file (YAML, format 1)")->required();
-  cmd->add_option("--json", args->json, "write the results as JSON to FILE ('-' for standard output)")
+  cmd->add_option("--json", args->json,
+                  "write the results as JSON to FILE ('-' for standard output)")
       ->type_name("FILE");
   cmd->add_option("--csv", args->csv_dir,
                   "write buses.csv, bus_harmonics.csv, drives.csv, branches.csv into DIR")
       ->type_name("DIR");
-  cmd->add_option("--threads", args->threads, "worker threads for the harmonic orders (0 = all cores)")
+  cmd->add_option("--threads", args->threads,
+                  "worker threads for the harmonic orders (0 = all cores)")
       ->check(CLI::Range(0, 1024));
   cmd->add_flag("--no-scan", args->no_scan, "leave resonance screening (frequency scan) out");
-  cmd->add_flag("--no-color", args->no_color, "no colour in the tables (also when NO_COLOR is set)");
-  cmd->add_flag("--fail-on-violation", args->fail_on_violation,
-                "exit with status 3 when the limit assessment finds violations (outputs are written)");
+  cmd->add_flag("--no-color", args->no_color,
+                "no colour in the tables (also when NO_COLOR is set)");
+  cmd->add_flag(
+      "--fail-on-violation", args->fail_on_violation,
+      "exit with status 3 when the limit assessment finds violations (outputs are written)");
   return {cmd, [args]() {
-    const Plant plant = LoadPlant(args->plant);
-    StudyOptions options;
-    options.threads = args->threads;
-    options.scan = !args->no_scan;
-    const StudyResult result = RunStudy(plant, options);
-    // Everything is computed before the first byte is written: a failure leaves no partial output.
-    if (args->json == "-") {
-      WriteStudyJson(result, std::cout);
-    } else if (!args->json.empty()) {
-      WriteFileAtomically(args->json, [&](std::ostream& out) { WriteStudyJson(result, out); });
-    }
-    if (!args->csv_dir.empty()) WriteStudyCsv(result, args->csv_dir);
-    if (args->json != "-") PrintStudyTables(result, std::cout, WantColour(args->no_color));
-    const bool violated = !result.assessment.violations.empty();
-    return args->fail_on_violation && violated ? kExitViolation : kExitOk;
-  }};
+            const Plant plant = LoadPlant(args->plant);
+            StudyOptions options;
+            options.threads = args->threads;
+            options.scan = !args->no_scan;
+            const StudyResult result = RunStudy(plant, options);
+            // Everything is computed before the first byte is written: a failure leaves no partial
+            // output.
+            if (args->json == "-") {
+              WriteStudyJson(result, std::cout);
+            } else if (!args->json.empty()) {
+              WriteFileAtomically(args->json,
+                                  [&](std::ostream& out) { WriteStudyJson(result, out); });
+            }
+            if (!args->csv_dir.empty()) WriteStudyCsv(result, args->csv_dir);
+            if (args->json != "-") PrintStudyTables(result, std::cout, WantColour(args->no_color));
+            const bool violated = !result.assessment.violations.empty();
+            return args->fail_on_violation && violated ? kExitViolation : kExitOk;
+          }};
 }
 
 }  // namespace overtone::app

@@ -2,11 +2,11 @@
 // tables and JSON (docs/compare.md).
 #include "overtone/compare.h"
 
-#include <algorithm>
-#include <cmath>
-
 #include <fmt/format.h>
 #include <fmt/ostream.h>
+
+#include <algorithm>
+#include <cmath>
 
 #include "json_writer.h"
 #include "output_common.h"
@@ -27,7 +27,8 @@ BusFigures FiguresOf(const BusResult& b, const Assessment& a) {
   f.worst_percent = kNegligiblePercent;
   for (std::size_t h = 2; h < b.voltage_pu.by_order.size(); ++h) {
     const double percent = b.indices.fundamental > 0.0
-                               ? 100.0 * std::abs(b.voltage_pu.by_order[h]) / b.indices.fundamental : 0.0;
+                               ? 100.0 * std::abs(b.voltage_pu.by_order[h]) / b.indices.fundamental
+                               : 0.0;
     if (percent > f.worst_percent) f.worst_percent = percent, f.worst_order = static_cast<int>(h);
   }
   if (f.worst_order == 0) f.worst_percent = 0.0;
@@ -39,19 +40,24 @@ PccFigures FiguresOf(const PccResult& p) {
   PccFigures f{p.bus, p.tdd_percent, p.tdd_limit_percent, 0, 0.0, std::nullopt};
   for (const PccHarmonic& h : p.harmonics) {
     if (h.percent_of_il > std::max(f.worst_percent_of_il, kNegligiblePercent)) {
-      f.worst_order = h.order, f.worst_percent_of_il = h.percent_of_il, f.worst_limit_percent = h.limit_percent;
+      f.worst_order = h.order, f.worst_percent_of_il = h.percent_of_il,
+      f.worst_limit_percent = h.limit_percent;
     }
   }
   return f;
 }
 
-bool SameViolation(const Violation& a, const Violation& b) { return a.where == b.where && a.what == b.what; }
+bool SameViolation(const Violation& a, const Violation& b) {
+  return a.where == b.where && a.what == b.what;
+}
 
 // Violations of `from` that `other` does not have.
-std::vector<Violation> Missing(const std::vector<Violation>& from, const std::vector<Violation>& other) {
+std::vector<Violation> Missing(const std::vector<Violation>& from,
+                               const std::vector<Violation>& other) {
   std::vector<Violation> out;
   for (const Violation& v : from) {
-    if (std::none_of(other.begin(), other.end(), [&](const Violation& w) { return SameViolation(v, w); })) {
+    if (std::none_of(other.begin(), other.end(),
+                     [&](const Violation& w) { return SameViolation(v, w); })) {
       out.push_back(v);
     }
   }
@@ -83,7 +89,8 @@ ResonanceShift Shift(const std::string& bus, const char* change, const Resonance
 }
 
 // Peaks at each bus matched greedily, nearest first, within kPeakMatchOrders.
-std::vector<ResonanceShift> ShiftsOf(const std::vector<Resonance>& base, const std::vector<Resonance>& proposed) {
+std::vector<ResonanceShift> ShiftsOf(const std::vector<Resonance>& base,
+                                     const std::vector<Resonance>& proposed) {
   std::vector<std::string> buses;
   for (const auto* list : {&base, &proposed}) {
     for (const Resonance& r : *list) {
@@ -93,14 +100,17 @@ std::vector<ResonanceShift> ShiftsOf(const std::vector<Resonance>& base, const s
   std::vector<ResonanceShift> shifts;
   for (const std::string& bus : buses) {
     std::vector<const ResonancePeak*> b, p;
-    for (const Resonance& r : base) if (r.bus == bus) b.push_back(&r.peak);
-    for (const Resonance& r : proposed) if (r.bus == bus) p.push_back(&r.peak);
+    for (const Resonance& r : base)
+      if (r.bus == bus) b.push_back(&r.peak);
+    for (const Resonance& r : proposed)
+      if (r.bus == bus) p.push_back(&r.peak);
     std::vector<bool> p_used(p.size(), false);
     for (const ResonancePeak* x : b) {
       int best = -1;
       for (std::size_t k = 0; k < p.size(); ++k) {
         const double d = std::abs(p[k]->order - x->order);
-        if (!p_used[k] && d <= kPeakMatchOrders && (best < 0 || d < std::abs(p[best]->order - x->order))) {
+        if (!p_used[k] && d <= kPeakMatchOrders &&
+            (best < 0 || d < std::abs(p[best]->order - x->order))) {
           best = static_cast<int>(k);
         }
       }
@@ -145,16 +155,16 @@ std::string MarkNote(const std::string& note, bool colour) {
   return note;
 }
 
-void PrintViolationList(const char* heading, const std::vector<Violation>& list, const std::string& word,
-                        Tone tone, bool colour, std::ostream& out) {
+void PrintViolationList(const char* heading, const std::vector<Violation>& list,
+                        const std::string& word, Tone tone, bool colour, std::ostream& out) {
   fmt::print(out, "\n{}: {}\n", heading, list.empty() ? "none" : std::to_string(list.size()));
   if (list.empty()) return;
   std::size_t w = 5;
   for (const Violation& v : list) w = std::max(w, v.where.size());
   fmt::print(out, "  {:<{}}  {:<9}  {:>8}  {:>8}\n", "where", w, "what", "value %", "limit %");
   for (const Violation& v : list) {
-    fmt::print(out, "  {:<{}}  {:<9}  {:>8.2f}  {:>8.2f}  {}\n", v.where, w, v.what, v.value, v.limit,
-               Marked(word, tone, colour));
+    fmt::print(out, "  {:<{}}  {:<9}  {:>8.2f}  {:>8.2f}  {}\n", v.where, w, v.what, v.value,
+               v.limit, Marked(word, tone, colour));
   }
 }
 
@@ -165,30 +175,39 @@ void PrintBuses(const Comparison& c, bool colour, std::ostream& out) {
     for (const auto* f : {&b.base, &b.proposed}) rw = std::max(rw, *f ? (*f)->result.size() : 0);
   }
   fmt::print(out, "Buses (THDv %; worst: the largest order, % of V1)\n");
-  fmt::print(out, "{:<{}}  {:>7}  {:>8}  {:>7}  {:<11}  {:<11}  {:<{}}  {:<{}}  {}\n", "bus", w, "base",
-             "proposed", "change", "worst base", "worst prop.", "result base", rw, "result prop.", rw, "note");
+  fmt::print(out, "{:<{}}  {:>7}  {:>8}  {:>7}  {:<11}  {:<11}  {:<{}}  {:<{}}  {}\n", "bus", w,
+             "base", "proposed", "change", "worst base", "worst prop.", "result base", rw,
+             "result prop.", rw, "note");
   for (const BusChange& b : c.buses) {
     const auto thd = [](const std::optional<BusFigures>& f) {
       return f ? std::optional<double>(f->thd_v_percent) : std::nullopt;
     };
     fmt::print(out, "{:<{}}  {:>7}  {:>8}  {:>7}  {:<11}  {:<11}  {:<{}}  {:<{}}  {}\n", b.name, w,
                Opt(thd(b.base)), Opt(thd(b.proposed)),
-               b.base && b.proposed ? fmt::format("{:+.2f}", b.proposed->thd_v_percent - b.base->thd_v_percent) : "-",
+               b.base && b.proposed
+                   ? fmt::format("{:+.2f}", b.proposed->thd_v_percent - b.base->thd_v_percent)
+                   : "-",
                b.base ? Worst(b.base->worst_order, b.base->worst_percent) : "-",
                b.proposed ? Worst(b.proposed->worst_order, b.proposed->worst_percent) : "-",
-               b.base ? b.base->result : "-", rw, b.proposed ? b.proposed->result : "-", rw, MarkNote(b.Note(), colour));
+               b.base ? b.base->result : "-", rw, b.proposed ? b.proposed->result : "-", rw,
+               MarkNote(b.Note(), colour));
   }
 }
 
 void PrintPcc(const Comparison& c, bool colour, std::ostream& out) {
   const PccFigures &b = c.pcc_base, &p = c.pcc_proposed;
-  fmt::print(out, "\nPoint of common coupling: {}{}\n", b.bus, b.bus == p.bus ? "" : " (base), " + p.bus + " (proposed)");
+  fmt::print(out, "\nPoint of common coupling: {}{}\n", b.bus,
+             b.bus == p.bus ? "" : " (base), " + p.bus + " (proposed)");
   fmt::print(out, "  {:<22}  {:>8}  {:>8}  {:>7}  {}\n", "", "base", "proposed", "change", "note");
-  fmt::print(out, "  {:<22}  {:>8}  {:>8}  {:>7}  {}\n", "TDD %", Opt(b.tdd_percent), Opt(p.tdd_percent),
-             b.tdd_percent && p.tdd_percent ? fmt::format("{:+.2f}", *p.tdd_percent - *b.tdd_percent) : "-",
-             MarkNote(TddNote(b, p), colour));
-  fmt::print(out, "  {:<22}  {:>8}  {:>8}\n", "TDD limit %", Opt(b.tdd_limit_percent), Opt(p.tdd_limit_percent));
-  fmt::print(out, "  {:<22}  {:>8}  {:>8}\n", "worst order (% of I_L)", Worst(b.worst_order, b.worst_percent_of_il),
+  fmt::print(
+      out, "  {:<22}  {:>8}  {:>8}  {:>7}  {}\n", "TDD %", Opt(b.tdd_percent), Opt(p.tdd_percent),
+      b.tdd_percent && p.tdd_percent ? fmt::format("{:+.2f}", *p.tdd_percent - *b.tdd_percent)
+                                     : "-",
+      MarkNote(TddNote(b, p), colour));
+  fmt::print(out, "  {:<22}  {:>8}  {:>8}\n", "TDD limit %", Opt(b.tdd_limit_percent),
+             Opt(p.tdd_limit_percent));
+  fmt::print(out, "  {:<22}  {:>8}  {:>8}\n", "worst order (% of I_L)",
+             Worst(b.worst_order, b.worst_percent_of_il),
              Worst(p.worst_order, p.worst_percent_of_il));
 }
 
@@ -198,12 +217,13 @@ void PrintShifts(const Comparison& c, bool colour, std::ostream& out) {
   if (c.resonance_shifts.empty()) return;
   std::size_t w = 3;
   for (const ResonanceShift& s : c.resonance_shifts) w = std::max(w, s.bus.size());
-  fmt::print(out, "  {:<{}}  {:<11}  {:>7}  {:>8}  {:<11}  {:<11}  {}\n", "bus", w, "change", "h base",
-             "h prop.", "risk base", "risk prop.", "nearest 6k+-1");
+  fmt::print(out, "  {:<{}}  {:<11}  {:>7}  {:>8}  {:<11}  {:<11}  {}\n", "bus", w, "change",
+             "h base", "h prop.", "risk base", "risk prop.", "nearest 6k+-1");
   for (const ResonanceShift& s : c.resonance_shifts) {
     const bool riskier = s.proposed && (!s.base || s.proposed->risk > s.base->risk);
     fmt::print(out, "  {:<{}}  {}  {:>7}  {:>8}  {:<11}  {:<11}  {}{}\n", s.bus, w,
-               riskier ? Marked(fmt::format("{:<11}", s.change), Tone::kBad, colour) : fmt::format("{:<11}", s.change),
+               riskier ? Marked(fmt::format("{:<11}", s.change), Tone::kBad, colour)
+                       : fmt::format("{:<11}", s.change),
                s.base ? fmt::format("{:.2f}", s.base->order) : "-",
                s.proposed ? fmt::format("{:.2f}", s.proposed->order) : "-",
                s.base ? ToString(s.base->risk) : "-", s.proposed ? ToString(s.proposed->risk) : "-",
@@ -213,7 +233,8 @@ void PrintShifts(const Comparison& c, bool colour, std::ostream& out) {
 
 void WriteBusFigures(JsonWriter& j, const BusFigures& f, const std::string& suffix) {
   j.Field("thd_v_percent" + suffix, f.thd_v_percent);
-  if (f.worst_order > 0) j.Field("worst_order" + suffix, f.worst_order).Field("worst_percent" + suffix, f.worst_percent);
+  if (f.worst_order > 0)
+    j.Field("worst_order" + suffix, f.worst_order).Field("worst_percent" + suffix, f.worst_percent);
   j.Field("result" + suffix, f.result);
 }
 
@@ -222,7 +243,8 @@ void WritePccFigures(JsonWriter& j, const PccFigures& f, const std::string& suff
   if (f.tdd_percent) j.Field("tdd_percent" + suffix, *f.tdd_percent);
   if (f.tdd_limit_percent) j.Field("tdd_limit_percent" + suffix, *f.tdd_limit_percent);
   if (f.worst_order > 0) {
-    j.Field("worst_order" + suffix, f.worst_order).Field("worst_percent_of_il" + suffix, f.worst_percent_of_il);
+    j.Field("worst_order" + suffix, f.worst_order)
+        .Field("worst_percent_of_il" + suffix, f.worst_percent_of_il);
     if (f.worst_limit_percent) j.Field("worst_limit_percent" + suffix, *f.worst_limit_percent);
   }
 }
@@ -230,7 +252,12 @@ void WritePccFigures(JsonWriter& j, const PccFigures& f, const std::string& suff
 void WriteViolations(JsonWriter& j, const char* key, const std::vector<Violation>& list) {
   j.Key(key).BeginArray();
   for (const Violation& v : list) {
-    j.BeginObject().Field("where", v.where).Field("what", v.what).Field("value", v.value).Field("limit", v.limit).EndObject();
+    j.BeginObject()
+        .Field("where", v.where)
+        .Field("what", v.what)
+        .Field("value", v.value)
+        .Field("limit", v.limit)
+        .EndObject();
   }
   j.EndArray();
 }
@@ -244,7 +271,9 @@ void WritePeak(JsonWriter& j, const char* key, const std::optional<ResonancePeak
 
 }  // namespace
 
-std::string BusChange::Status() const { return base && proposed ? "both" : base ? "removed" : "added"; }
+std::string BusChange::Status() const {
+  return base && proposed ? "both" : base ? "removed" : "added";
+}
 
 std::string BusChange::Note() const {
   if (!base || !proposed) return Status();
@@ -262,15 +291,18 @@ std::string TddNote(const PccFigures& b, const PccFigures& p) {
   return Direction(*b.tdd_percent, *p.tdd_percent);
 }
 
-Comparison CompareStudies(const StudyResult& base, const std::string& base_file, const StudyResult& proposed,
-                          const std::string& proposed_file) {
+Comparison CompareStudies(const StudyResult& base, const std::string& base_file,
+                          const StudyResult& proposed, const std::string& proposed_file) {
   Comparison c;
   c.base_name = base.study.name, c.base_file = base_file;
   c.proposed_name = proposed.study.name, c.proposed_file = proposed_file;
-  for (const BusResult& b : base.buses) c.buses.push_back({b.name, FiguresOf(b, base.assessment), std::nullopt});
+  for (const BusResult& b : base.buses)
+    c.buses.push_back({b.name, FiguresOf(b, base.assessment), std::nullopt});
   for (const BusResult& p : proposed.buses) {
-    auto it = std::find_if(c.buses.begin(), c.buses.end(), [&](const BusChange& x) { return x.name == p.name; });
-    if (it == c.buses.end()) it = c.buses.insert(c.buses.end(), {p.name, std::nullopt, std::nullopt});
+    auto it = std::find_if(c.buses.begin(), c.buses.end(),
+                           [&](const BusChange& x) { return x.name == p.name; });
+    if (it == c.buses.end())
+      it = c.buses.insert(c.buses.end(), {p.name, std::nullopt, std::nullopt});
     it->proposed = FiguresOf(p, proposed.assessment);
   }
   c.pcc_base = FiguresOf(base.pcc);
@@ -280,19 +312,23 @@ Comparison CompareStudies(const StudyResult& base, const std::string& base_file,
   c.new_violations = Missing(vp, vb);
   c.cleared_violations = Missing(vb, vp);
   for (const Violation& v : vb) {
-    const auto w = std::find_if(vp.begin(), vp.end(), [&](const Violation& x) { return SameViolation(v, x); });
-    if (w != vp.end()) c.remaining_violations.push_back({v.where, v.what, v.value, w->value, w->limit});
+    const auto w =
+        std::find_if(vp.begin(), vp.end(), [&](const Violation& x) { return SameViolation(v, x); });
+    if (w != vp.end())
+      c.remaining_violations.push_back({v.where, v.what, v.value, w->value, w->limit});
   }
   c.resonance_shifts = ShiftsOf(base.resonances, proposed.resonances);
   if (base.assessment.profile != proposed.assessment.profile) {
-    c.notes.push_back(fmt::format("the cases use different limit profiles ({} and {})", base.assessment.profile,
-                                  proposed.assessment.profile));
+    c.notes.push_back(fmt::format("the cases use different limit profiles ({} and {})",
+                                  base.assessment.profile, proposed.assessment.profile));
   }
   if (base.study.summation != proposed.study.summation) {
     c.notes.push_back(fmt::format("the cases use different summation rules ({} and {})",
-                                  ToString(base.study.summation), ToString(proposed.study.summation)));
+                                  ToString(base.study.summation),
+                                  ToString(proposed.study.summation)));
   }
-  if (base.pcc.bus != proposed.pcc.bus) c.notes.push_back("the cases have different points of common coupling");
+  if (base.pcc.bus != proposed.pcc.bus)
+    c.notes.push_back("the cases have different points of common coupling");
   c.cautions = StandardCautions();
   return c;
 }
@@ -303,15 +339,18 @@ void PrintComparison(const Comparison& c, std::ostream& out, bool colour) {
   PrintBuses(c, colour, out);
   PrintPcc(c, colour, out);
   PrintViolationList("New violations", c.new_violations, "new", Tone::kBad, colour, out);
-  PrintViolationList("Cleared violations", c.cleared_violations, "cleared", Tone::kGood, colour, out);
+  PrintViolationList("Cleared violations", c.cleared_violations, "cleared", Tone::kGood, colour,
+                     out);
   if (!c.remaining_violations.empty()) {
     fmt::print(out, "\nViolations in both cases: {}\n", c.remaining_violations.size());
     std::size_t w = 5;
     for (const ViolationChange& v : c.remaining_violations) w = std::max(w, v.where.size());
-    fmt::print(out, "  {:<{}}  {:<9}  {:>8}  {:>8}  {:>8}  {}\n", "where", w, "what", "base %", "prop. %", "limit %", "note");
+    fmt::print(out, "  {:<{}}  {:<9}  {:>8}  {:>8}  {:>8}  {}\n", "where", w, "what", "base %",
+               "prop. %", "limit %", "note");
     for (const ViolationChange& v : c.remaining_violations) {
-      fmt::print(out, "  {:<{}}  {:<9}  {:>8.2f}  {:>8.2f}  {:>8.2f}  {}\n", v.where, w, v.what, v.value_base,
-                 v.value_proposed, v.limit, Direction(v.value_base, v.value_proposed));
+      fmt::print(out, "  {:<{}}  {:<9}  {:>8.2f}  {:>8.2f}  {:>8.2f}  {}\n", v.where, w, v.what,
+                 v.value_base, v.value_proposed, v.limit,
+                 Direction(v.value_base, v.value_proposed));
     }
   }
   PrintShifts(c, colour, out);
@@ -327,13 +366,18 @@ void WriteComparisonJson(const Comparison& c, std::ostream& out) {
   JsonWriter j(out);
   j.BeginObject().Field("overtone", 1);
   j.Key("base").BeginObject().Field("name", c.base_name).Field("file", c.base_file).EndObject();
-  j.Key("proposed").BeginObject().Field("name", c.proposed_name).Field("file", c.proposed_file).EndObject();
+  j.Key("proposed")
+      .BeginObject()
+      .Field("name", c.proposed_name)
+      .Field("file", c.proposed_file)
+      .EndObject();
   j.Key("buses").BeginArray();
   for (const BusChange& b : c.buses) {
     j.BeginObject().Field("name", b.name).Field("status", b.Status());
     if (b.base) WriteBusFigures(j, *b.base, "_base");
     if (b.proposed) WriteBusFigures(j, *b.proposed, "_proposed");
-    if (b.base && b.proposed) j.Field("thd_v_change_percent", b.proposed->thd_v_percent - b.base->thd_v_percent);
+    if (b.base && b.proposed)
+      j.Field("thd_v_change_percent", b.proposed->thd_v_percent - b.base->thd_v_percent);
     j.EndObject();
   }
   j.EndArray();
@@ -357,7 +401,8 @@ void WriteComparisonJson(const Comparison& c, std::ostream& out) {
     j.BeginObject().Field("bus", s.bus).Field("change", s.change);
     WritePeak(j, "base", s.base);
     WritePeak(j, "proposed", s.proposed);
-    j.Field("characteristic_order", s.characteristic_order).Field("near_characteristic", s.near_characteristic);
+    j.Field("characteristic_order", s.characteristic_order)
+        .Field("near_characteristic", s.near_characteristic);
     j.EndObject();
   }
   j.EndArray();

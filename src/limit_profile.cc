@@ -1,14 +1,14 @@
 // src/limit_profile.cc — reads limit profile files (docs/limits.md) with located errors.
 #include "limit_profile.h"
 
+#include <fmt/format.h>
+#include <yaml-cpp/yaml.h>
+
 #include <algorithm>
 #include <cmath>
 #include <filesystem>
 #include <initializer_list>
 #include <string_view>
-
-#include <fmt/format.h>
-#include <yaml-cpp/yaml.h>
 
 #include "overtone/errors.h"
 #include "overtone/load.h"
@@ -34,7 +34,8 @@ class ProfileReader {
   }
 
   // Reports keys of `map` not in `allowed`; false when `map` is not a mapping.
-  bool Mapping(const YAML::Node& map, std::string_view what, std::initializer_list<std::string_view> allowed) {
+  bool Mapping(const YAML::Node& map, std::string_view what,
+               std::initializer_list<std::string_view> allowed) {
     if (!map.IsMap()) {
       Error(map, fmt::format("{} must be a mapping", what));
       return false;
@@ -74,8 +75,8 @@ class ProfileReader {
   }
 
   // `up_to_kv` of a class; classes rise, only the last may leave it out.
-  std::optional<double> UpTo(const YAML::Node& node, const char* key, std::optional<double>& previous,
-                             bool last) {
+  std::optional<double> UpTo(const YAML::Node& node, const char* key,
+                             std::optional<double>& previous, bool last) {
     if (!node[key]) {
       if (!last) Error(node, fmt::format("only the last entry may leave `{}` out", key));
       return std::nullopt;
@@ -108,8 +109,10 @@ class ProfileReader {
       if (kind == "odd") return h % 2 == 1;
       return true;
     };
-    if (kind != "all" && kind != "odd" && kind != "even" && kind != "odd-non-triplen" && kind != "triplen") {
-      Error(row["kind"], fmt::format("unknown kind `{}` (all, odd, even, odd-non-triplen, triplen)", kind));
+    if (kind != "all" && kind != "odd" && kind != "even" && kind != "odd-non-triplen" &&
+        kind != "triplen") {
+      Error(row["kind"],
+            fmt::format("unknown kind `{}` (all, odd, even, odd-non-triplen, triplen)", kind));
       return;
     }
     std::optional<double> percent, times, n, plus;
@@ -133,7 +136,8 @@ class ProfileReader {
       if (!selected(h)) continue;
       const double value = percent ? *percent : *times * *n / h + *plus;
       if (value <= 0.0) {
-        Error(row, fmt::format("the law gives {:.3g} % at order {}; a limit must be positive", value, h));
+        Error(row, fmt::format("the law gives {:.3g} % at order {}; a limit must be positive",
+                               value, h));
         return;
       }
       if (limits[h]) {
@@ -166,7 +170,8 @@ class ProfileReader {
       if (!Mapping(c, "a voltage class", {"up_to_kv", "thd", "orders"})) continue;
       VoltageLimitClass vc;
       vc.up_to_kv = UpTo(c, "up_to_kv", previous, i + 1 == classes.size());
-      vc.thd_percent = Number(Required(c, "thd", "a voltage class"), "thd", 0.01, 100.0).value_or(0.0);
+      vc.thd_percent =
+          Number(Required(c, "thd", "a voltage class"), "thd", 0.01, 100.0).value_or(0.0);
       vc.individual.resize(kMaxLimitOrder + 1);
       const YAML::Node orders = Required(c, "orders", "a voltage class");
       if (orders && !orders.IsSequence()) Error(orders, "`orders` must be a list");
@@ -203,7 +208,9 @@ class ProfileReader {
   void Current(const YAML::Node& node, LimitProfile& p) {
     if (!Mapping(node, "`current`", {"even_percent_of_odd", "classes"})) return;
     const double even = Number(Required(node, "even_percent_of_odd", "`current`"),
-                               "even_percent_of_odd", 0.0, 100.0).value_or(100.0) / 100.0;
+                               "even_percent_of_odd", 0.0, 100.0)
+                            .value_or(100.0) /
+                        100.0;
     const YAML::Node classes = Required(node, "classes", "`current`");
     if (!classes) return;
     if (!classes.IsSequence() || classes.size() == 0) {
@@ -217,7 +224,8 @@ class ProfileReader {
       CurrentLimitClass cc;
       cc.up_to_kv = UpTo(c, "up_to_kv", previous_kv, i + 1 == classes.size());
       const YAML::Node ranges_node = Required(c, "ranges", "a current class");
-      const std::vector<std::pair<int, int>> ranges = ranges_node ? Ranges(ranges_node) : decltype(Ranges(c)){};
+      const std::vector<std::pair<int, int>> ranges =
+          ranges_node ? Ranges(ranges_node) : decltype(Ranges(c)){};
       const YAML::Node rows = Required(c, "rows", "a current class");
       if (!rows) continue;
       if (!rows.IsSequence() || rows.size() == 0) {
@@ -230,12 +238,14 @@ class ProfileReader {
         if (!Mapping(row, "a current row", {"isc_il_below", "odd", "tdd"})) continue;
         CurrentLimitRow cr;
         cr.isc_il_below = UpTo(row, "isc_il_below", previous_ratio, k + 1 == rows.size());
-        cr.tdd_percent = Number(Required(row, "tdd", "a current row"), "tdd", 0.01, 100.0).value_or(0.0);
+        cr.tdd_percent =
+            Number(Required(row, "tdd", "a current row"), "tdd", 0.01, 100.0).value_or(0.0);
         cr.individual.resize(kMaxLimitOrder + 1);
         const YAML::Node odd = Required(row, "odd", "a current row");
         if (!odd) continue;
         if (!odd.IsSequence() || odd.size() != ranges.size()) {
-          if (!ranges.empty()) Error(odd, fmt::format("`odd` must list {} limits, one per range", ranges.size()));
+          if (!ranges.empty())
+            Error(odd, fmt::format("`odd` must list {} limits, one per range", ranges.size()));
           continue;
         }
         for (std::size_t r = 0; r < ranges.size(); ++r) {
@@ -254,12 +264,16 @@ class ProfileReader {
   LimitProfile Read(const YAML::Node& root) {
     LimitProfile p;
     p.file = file_;
-    if (!Mapping(root, "a limit profile", {"overtone_limits", "name", "title", "voltage", "current"})) Throw();
+    if (!Mapping(root, "a limit profile",
+                 {"overtone_limits", "name", "title", "voltage", "current"}))
+      Throw();
     const YAML::Node version = Required(root, "overtone_limits", "a limit profile");
-    if (version && version.Scalar() != "1") Error(version, "`overtone_limits` must be 1 (this version reads format 1)");
+    if (version && version.Scalar() != "1")
+      Error(version, "`overtone_limits` must be 1 (this version reads format 1)");
     if (const YAML::Node name = Required(root, "name", "a limit profile")) p.name = name.Scalar();
     p.title = root["title"] ? root["title"].Scalar() : p.name;
-    if (const YAML::Node voltage = Required(root, "voltage", "a limit profile")) Voltage(voltage, p);
+    if (const YAML::Node voltage = Required(root, "voltage", "a limit profile"))
+      Voltage(voltage, p);
     if (root["current"]) Current(root["current"], p);
     if (!errors_.empty()) Throw();
     return p;
@@ -287,7 +301,9 @@ const Class* ClassFor(const std::vector<Class>& classes, double kv) {
 
 }  // namespace
 
-const VoltageLimitClass* LimitProfile::VoltageClass(double kv) const { return ClassFor(voltage, kv); }
+const VoltageLimitClass* LimitProfile::VoltageClass(double kv) const {
+  return ClassFor(voltage, kv);
+}
 
 const CurrentLimitRow* LimitProfile::CurrentRow(double kv, double isc_over_il) const {
   const CurrentLimitClass* c = ClassFor(current, kv);
@@ -328,7 +344,8 @@ LimitProfile LoadLimitProfile(const std::string& name_or_path) {
     if (!fs::is_regular_file(file, code)) {
       throw InputError({file.string(), 0, 0},
                        fmt::format("the built-in limit profile `{}` is missing from this "
-                                   "installation", name_or_path));
+                                   "installation",
+                                   name_or_path));
     }
     return ReadLimitProfile(file.string());
   }

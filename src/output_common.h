@@ -2,16 +2,15 @@
 #ifndef OVERTONE_INTERNAL_OUTPUT_COMMON_H_
 #define OVERTONE_INTERNAL_OUTPUT_COMMON_H_
 
+#include <fmt/format.h>
+
 #include <algorithm>
 #include <cctype>
 #include <cmath>
 #include <numbers>
-#include <string>
-
 #include <optional>
+#include <string>
 #include <vector>
-
-#include <fmt/format.h>
 
 #include "json_writer.h"
 #include "overtone/scan.h"
@@ -20,18 +19,29 @@
 namespace overtone::internal {
 
 // Angle in degrees; a zero phasor has angle 0 (PLANT-FORMAT.md "Conventions").
-inline double AngleDeg(Phasor x) { return x == Phasor{} ? 0.0 : std::arg(x) * 180.0 / std::numbers::pi; }
+inline double AngleDeg(Phasor x) {
+  return x == Phasor{} ? 0.0 : std::arg(x) * 180.0 / std::numbers::pi;
+}
 
 // Text for XML and HTML content and attribute values.
 inline std::string XmlEscape(const std::string& s) {
   std::string out;
   for (char c : s) {
     switch (c) {
-      case '&': out += "&amp;"; break;
-      case '<': out += "&lt;"; break;
-      case '>': out += "&gt;"; break;
-      case '"': out += "&quot;"; break;
-      default: out += c;
+      case '&':
+        out += "&amp;";
+        break;
+      case '<':
+        out += "&lt;";
+        break;
+      case '>':
+        out += "&gt;";
+        break;
+      case '"':
+        out += "&quot;";
+        break;
+      default:
+        out += c;
     }
   }
   return out;
@@ -40,7 +50,9 @@ inline std::string XmlEscape(const std::string& s) {
 // A name made safe for a file name: letters, digits, '.', '_' and '-' kept, anything else '_'.
 inline std::string FileSafe(const std::string& name) {
   std::string out;
-  for (char c : name) out += std::isalnum(static_cast<unsigned char>(c)) || c == '.' || c == '-' || c == '_' ? c : '_';
+  for (char c : name)
+    out +=
+        std::isalnum(static_cast<unsigned char>(c)) || c == '.' || c == '-' || c == '_' ? c : '_';
   return out;
 }
 
@@ -53,7 +65,8 @@ inline std::string CsvField(const std::string& s) {
 }
 
 // " 5: 3.20   7: 2.10  11: 0.90": the three largest harmonic orders in percent of the fundamental.
-inline std::string LargestOrders(const Spectrum& s, double fundamental, const char* separator = "  ") {
+inline std::string LargestOrders(const Spectrum& s, double fundamental,
+                                 const char* separator = "  ") {
   if (fundamental <= 0.0) return "";
   std::vector<int> orders;
   for (std::size_t h = 2; h < s.by_order.size(); ++h) {
@@ -64,10 +77,12 @@ inline std::string LargestOrders(const Spectrum& s, double fundamental, const ch
     return ma != mb ? ma > mb : a < b;
   };
   const std::size_t shown = std::min<std::size_t>(3, orders.size());
-  std::partial_sort(orders.begin(), orders.begin() + static_cast<std::ptrdiff_t>(shown), orders.end(), larger);
+  std::partial_sort(orders.begin(), orders.begin() + static_cast<std::ptrdiff_t>(shown),
+                    orders.end(), larger);
   std::string text;
   for (std::size_t k = 0; k < shown; ++k) {
-    text += fmt::format("{}{:>2}: {:.2f}", k ? separator : "", orders[k], 100.0 * std::abs(s.at(orders[k])) / fundamental);
+    text += fmt::format("{}{:>2}: {:.2f}", k ? separator : "", orders[k],
+                        100.0 * std::abs(s.at(orders[k])) / fundamental);
   }
   return text;
 }
@@ -91,7 +106,8 @@ inline const BusLimitCheck* FindBusCheck(const Assessment& a, const std::string&
 enum class Tone { kBad, kGood };
 inline std::string Marked(const std::string& word, Tone tone, bool colour) {
   if (!colour) return word;
-  // 256-colour codes near Okabe-Ito vermillion and blue, bold: readable for common colour blindness.
+  // 256-colour codes near Okabe-Ito vermillion and blue, bold: readable for common colour
+  // blindness.
   return (tone == Tone::kBad ? "\x1b[1;38;5;166m" : "\x1b[1;38;5;32m") + word + "\x1b[0m";
 }
 

@@ -17,9 +17,9 @@ namespace overtone {
 // One case's figures at a bus; absent from a BusChange when the bus is not in that case.
 struct BusFigures {
   double thd_v_percent = 0.0;
-  int worst_order = 0;           // the order with the largest V_h; 0 when there is none
-  double worst_percent = 0.0;    // V_h of that order, percent of V1
-  std::string result;            // "pass", "FAIL", "over (design guide)" or "not checked"
+  int worst_order = 0;         // the order with the largest V_h; 0 when there is none
+  double worst_percent = 0.0;  // V_h of that order, percent of V1
+  std::string result;          // "pass", "FAIL", "over (design guide)" or "not checked"
 };
 
 // A bus matched by name across the two cases.
@@ -35,7 +35,7 @@ struct BusChange {
 struct PccFigures {
   std::string bus;
   std::optional<double> tdd_percent, tdd_limit_percent;
-  int worst_order = 0;              // the order with the largest percent of I_L; 0: none
+  int worst_order = 0;  // the order with the largest percent of I_L; 0: none
   double worst_percent_of_il = 0.0;
   std::optional<double> worst_limit_percent;
 };
@@ -45,7 +45,7 @@ struct ResonanceShift {
   std::string bus;
   std::string change;  // "moved", "appeared" or "disappeared"
   std::optional<ResonancePeak> base, proposed;
-  int characteristic_order = 0;    // the 6k +- 1 order nearest the peak (proposed, else base)
+  int characteristic_order = 0;      // the 6k +- 1 order nearest the peak (proposed, else base)
   bool near_characteristic = false;  // within kNearCharacteristic of it
 };
 

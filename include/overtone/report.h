@@ -45,7 +45,8 @@ struct ReportInputs {
 
 // Runs the study of `plant`, the same study under the two other summation rules, its frequency
 // scan and, when `base` is given, the base case's study and the comparison with it.
-ReportInputs PrepareReport(const Plant& plant, const StudyOptions& options, const Plant* base = nullptr);
+ReportInputs PrepareReport(const Plant& plant, const StudyOptions& options,
+                           const Plant* base = nullptr);
 
 // `overtone report`: report.md, a self-contained report.html (inline SVG), each chart as an SVG
 // file and the CSV tables of WriteStudyCsv in `dir` (created if needed).
