@@ -4,6 +4,7 @@
 #include <memory>
 
 #include "commands.h"
+#include "output_paths.h"
 #include "overtone/headroom.h"
 #include "overtone/load.h"
 #include "overtone/report.h"
@@ -38,18 +39,19 @@ Command AddHeadroomCommand(CLI::App& app) {
                   "write the results as JSON to FILE ('-' for standard output)")
       ->type_name("FILE");
   return {cmd, [args]() {
-            const Plant plant = LoadPlant(args->plant);
-            const HeadroomResult result = RunHeadroom(plant, args->options);
-            // Everything is computed before the first byte is written.
-            if (args->json == "-") {
-              WriteHeadroomJson(result, std::cout);
-            } else if (!args->json.empty()) {
-              WriteFileAtomically(args->json,
-                                  [&](std::ostream& out) { WriteHeadroomJson(result, out); });
-            }
-            if (args->json != "-") PrintHeadroomTable(result, std::cout);
-            return kExitOk;
-          }};
+    CheckOutputFile("--json", args->json);
+    const Plant plant = LoadPlant(args->plant);
+    const HeadroomResult result = RunHeadroom(plant, args->options);
+    // Everything is computed before the first byte is written.
+    if (args->json == "-") {
+      WriteHeadroomJson(result, std::cout);
+    } else if (!args->json.empty()) {
+      WriteFileAtomically(args->json,
+                          [&](std::ostream& out) { WriteHeadroomJson(result, out); });
+    }
+    if (args->json != "-") PrintHeadroomTable(result, std::cout);
+    return kExitOk;
+  }};
 }
 
 }  // namespace overtone::app

@@ -3,6 +3,7 @@
 #include <memory>
 
 #include "commands.h"
+#include "output_paths.h"
 #include "overtone/load.h"
 #include "overtone/mitigate.h"
 #include "overtone/report.h"
@@ -32,25 +33,27 @@ Command AddMitigateCommand(CLI::App& app) {
                   "write the options as JSON to FILE ('-' for standard output)")
       ->type_name("FILE");
   return {cmd, [args]() {
-            const Plant plant = LoadPlant(args->plant);
-            const MitigationResult result = EvaluateMitigations(plant, args->options);
-            // Everything is computed before the first byte is written.
-            WriteMitigationPlantFiles(result, args->options.out_dir);
-            if (args->json == "-") {
-              WriteMitigationJson(result, std::cout);
-            } else if (!args->json.empty()) {
-              WriteFileAtomically(args->json,
-                                  [&](std::ostream& out) { WriteMitigationJson(result, out); });
-            }
-            if (args->json != "-") {
-              PrintMitigationTable(result, std::cout);
-              if (!result.options.empty()) {
-                std::cout << "\nwrote " << result.options.size() << " option plant files into "
-                          << args->options.out_dir << '\n';
-              }
-            }
-            return kExitOk;
-          }};
+    CheckOutputFile("--json", args->json);
+    CheckOutputFolder("-o", args->options.out_dir);
+    const Plant plant = LoadPlant(args->plant);
+    const MitigationResult result = EvaluateMitigations(plant, args->options);
+    // Everything is computed before the first byte is written.
+    WriteMitigationPlantFiles(result, args->options.out_dir);
+    if (args->json == "-") {
+      WriteMitigationJson(result, std::cout);
+    } else if (!args->json.empty()) {
+      WriteFileAtomically(args->json,
+                          [&](std::ostream& out) { WriteMitigationJson(result, out); });
+    }
+    if (args->json != "-") {
+      PrintMitigationTable(result, std::cout);
+      if (!result.options.empty()) {
+        std::cout << "\nwrote " << result.options.size() << " option plant files into "
+                  << args->options.out_dir << '\n';
+      }
+    }
+    return kExitOk;
+  }};
 }
 
 }  // namespace overtone::app

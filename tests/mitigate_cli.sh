@@ -19,6 +19,8 @@ grep -q "no drive group named 'NO-SUCH'" "$WORK/kind.err" || fail "kind: message
 run bus 2 "$BIN" headroom "$DEMO" --drive-kind VFD-B1 --bus NO-BUS --json "$WORK/h.json"
 grep -q "no bus named 'NO-BUS'" "$WORK/bus.err" || fail "bus: message: $(cat "$WORK/bus.err")"
 run nobus 2 "$BIN" headroom "$DEMO" --drive-kind VFD-B1 --json "$WORK/h.json"
+run jsonfolder 2 "$BIN" headroom "$DEMO" --drive-kind VFD-B1 --bus MCC-B1 --json "$WORK/no/h.json"
+grep -q "the folder does not exist" "$WORK/jsonfolder.err" || fail "jsonfolder: $(cat "$WORK/jsonfolder.err")"
 [ -e "$WORK/h.json" ] && fail "headroom wrote JSON after a usage error"
 
 # 2. headroom JSON shape (PLANT-FORMAT.md) and the cautions in the table.
@@ -39,6 +41,10 @@ PY
 run badplant 2 "$BIN" mitigate "$WORK/none.yaml" -o "$WORK/bad" --json "$WORK/bad.json"
 [ -e "$WORK/bad" ] || [ -e "$WORK/bad.json" ] && fail "mitigate wrote output for a missing plant"
 run noout 2 "$BIN" mitigate "$MILL"
+touch "$WORK/afile"
+run outfile 2 "$BIN" mitigate "$MILL" -o "$WORK/afile" --json "$WORK/bad.json"
+grep -q "is not a folder" "$WORK/outfile.err" || fail "outfile: $(cat "$WORK/outfile.err")"
+[ -e "$WORK/bad.json" ] && fail "outfile: wrote JSON"
 
 # 4. mitigate on the resonant mill: JSON shape, every file checks, one file reproduces.
 run mitigate 0 "$BIN" mitigate "$MILL" -o "$WORK/opt" --json "$WORK/m.json"
