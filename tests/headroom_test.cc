@@ -6,6 +6,7 @@
 #include <numbers>
 
 #include "overtone/errors.h"
+#include "overtone/load.h"
 #include "test_plants.h"
 
 using namespace overtone;
@@ -121,4 +122,34 @@ TEST_CASE("Unknown drive kinds and buses are input errors", "[headroom]") {
   HeadroomOptions both = AtBus("LV");
   both.all_buses = true;
   CHECK_THROWS_AS(RunHeadroom(plant, both), InputError);
+}
+
+TEST_CASE("Transformer derating binds when the load exceeds the derated capacity", "[headroom]") {
+  // IEEE Std C57.110 clause 5: F_HL = sum I_h^2 h^2 / sum I_h^2 and the largest rms current of
+  // that shape, I_max / I_R = sqrt((1 + P_EC-R) / (1 + F_HL P_EC-R)); P_EC-R = 10 % by default.
+  // The figure is `tx_derating`, value = the load, limit = that capacity, both % of rated current.
+  const Plant plant =
+      LoadPlant(std::string(OVERTONE_SOURCE_DIR) + "/tests/plants/mitigate/resonant-mill.yaml");
+  const StudyResult r = RunStudy(plant, StudyOptions{.threads = 0, .scan = false});
+  const BranchResult& tx = r.branches.at(0);
+  REQUIRE(tx.name == "TX-1");
+  double sum = 0.0, weighted = 0.0;
+  for (int h = 1; h < static_cast<int>(tx.current_a.by_order.size()); ++h) {
+    sum += std::norm(tx.current_a.at(h));
+    weighted += std::norm(tx.current_a.at(h)) * h * h;
+  }
+  const double f_hl = weighted / sum;
+  const double capacity = 100.0 * std::sqrt(1.1 / (1.0 + 0.1 * f_hl));
+  const double rated_a = 1500e3 / (std::numbers::sqrt3 * 13.8e3);
+  const double load = 100.0 * std::sqrt(sum) / rated_a;
+  bool found = false;
+  for (const HeadroomBinding& f : LimitFigures(r)) {
+    if (f.what != "tx_derating") continue;
+    found = true;
+    CHECK(f.where == "TX-1");
+    CHECK(f.value == Approx(load).epsilon(1e-6));
+    CHECK(f.limit == Approx(capacity).epsilon(1e-6));
+  }
+  CHECK(found);
+  CHECK(load > capacity);  // this mill's transformer is overloaded by its harmonic content
 }
