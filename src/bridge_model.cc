@@ -14,12 +14,13 @@ namespace {
 constexpr double kPi = std::numbers::pi;
 
 // Leakage reactance of a multipulse drive's internal phase-shifting transformer when no line
-// reactor is given: 5 % on the drive's rating (common practice, from memory).
+// reactor is given: 5 % on the drive's rating at the bus voltage, a fixed inductance like a
+// line reactor given in percent (common practice, from memory).
 constexpr double kMultipulseLeakage = 0.05;
 
 // One bridge circuit of the group and what it stands for.
 struct CircuitPlan {
-  BridgeParameters parameters;
+  BridgeParameters parameters;  // on the bus voltage base (bridge_table.h)
   double rated_va = 0.0;  // the circuit's power unit S
   double phase_shift = 0.0;  // rad, internal winding shift (multipulse)
 };
@@ -42,31 +43,9 @@ Complex ThroughWinding(Complex unit_current, int h, double shift) {
   return unit_current * std::polar(1.0, (h - sequence_sign) * shift);
 }
 
-}  // namespace
-
-const BridgeSolution& BridgeCache::Solve(const BridgeParameters& p, int max_order) {
-  const Key key = {static_cast<double>(p.circuit), p.r_supply, p.x_supply, p.x_reactor, p.x_dc,
-                   p.b_dc, p.firing_deg, p.thyristor ? 1.0 : 0.0, p.power,
-                   static_cast<double>(max_order)};
-  {
-    std::lock_guard lock(mutex_);
-    if (auto it = solutions_.find(key); it != solutions_.end()) return it->second;
-  }
-  // Solved outside the lock; two threads meeting the same new circuit both solve it, with the
-  // same result, and the first one stored is kept.
-  BridgeSolution solution = SolveBridge(p, max_order);
-  std::lock_guard lock(mutex_);
-  return solutions_.emplace(key, std::move(solution)).first->second;
-}
-
-double DefaultDcCapacitance(const Drive& d, double nominal_v) {
-  const double ratio = 480.0 / nominal_v;
-  return 40e-6 * (d.power_w / 1e3) * ratio * ratio;
-}
-
-GroupSpectrum ComputeGroupSpectrum(const Drive& d, const BusSupply& bus, int max_order,
-                                   BridgeCache& cache) {
-  const double v_emf = std::abs(bus.emf) * bus.nominal_v;  // circuit voltage unit, V line-to-line
+// The group's circuits on the bus voltage base (per unit of the circuit's own power on the bus
+// voltage), to be solved on the EMF |E| (bridge_table.h, OnEmfBase).
+std::vector<CircuitPlan> PlanCircuits(const Drive& d, const BusSupply& bus) {
   const double group_va = d.count * d.power_w;
   const Complex z_supply_ohm = bus.impedance * BaseOhms(bus.nominal_v);
   const double omega = 2.0 * kPi * bus.frequency_hz;
@@ -78,7 +57,7 @@ GroupSpectrum ComputeGroupSpectrum(const Drive& d, const BusSupply& bus, int max
   const auto plan = [&](BridgeCircuit circuit, double share, double supply_factor, double loading) {
     CircuitPlan c;
     c.rated_va = group_va * share;
-    const double z_base = v_emf * v_emf / c.rated_va;
+    const double z_base = bus.nominal_v * bus.nominal_v / c.rated_va;
     BridgeParameters& p = c.parameters;
     p.circuit = circuit;
     p.r_supply = supply_factor * z_supply_ohm.real() / z_base;
@@ -131,15 +110,64 @@ GroupSpectrum ComputeGroupSpectrum(const Drive& d, const BusSupply& bus, int max
     case FrontEnd::kMeasured:
       throw std::logic_error("table front ends do not use the bridge model");
   }
+  return plans;
+}
 
+}  // namespace
+
+BridgeCache::Key BridgeCache::KeyOf(const BridgeParameters& p) const {
+  return {static_cast<double>(p.circuit), p.r_supply, p.x_supply, p.x_reactor, p.x_dc,
+          p.b_dc, p.firing_deg, p.thyristor ? 1.0 : 0.0, p.power, static_cast<double>(max_order_)};
+}
+
+const BridgeSolution& BridgeCache::SolveExactly(const BridgeParameters& p) {
+  const Key key = KeyOf(p);
+  {
+    std::lock_guard lock(mutex_);
+    if (auto it = solutions_.find(key); it != solutions_.end()) return it->second;
+  }
+  // Solved outside the lock; two threads meeting the same new circuit both solve it, with the
+  // same result, and the first one stored is kept.
+  BridgeSolution solution = SolveBridge(p, max_order_);
+  std::lock_guard lock(mutex_);
+  return solutions_.emplace(key, std::move(solution)).first->second;
+}
+
+SolvedCircuit BridgeCache::Solve(const BridgeParameters& p, double emf) {
+  if (interpolate_) {
+    if (std::optional<SolvedCircuit> s = table_.Interpolate(p, emf)) return *std::move(s);
+  }
+  const BridgeSolution& s = SolveExactly(OnEmfBase(p, emf));
+  return {s.current, s.power, s.dc_voltage, s.peak_current, s.conduction_deg, s.overlap_deg,
+          &s.waveform, 1.0, false};
+}
+
+double DefaultDcCapacitance(const Drive& d, double nominal_v) {
+  const double ratio = 480.0 / nominal_v;
+  return 40e-6 * (d.power_w / 1e3) * ratio * ratio;
+}
+
+std::vector<BridgeParameters> GroupCircuits(const Drive& drive, const BusSupply& supply) {
+  std::vector<BridgeParameters> out;
+  for (const CircuitPlan& c : PlanCircuits(drive, supply)) {
+    out.push_back(OnEmfBase(c.parameters, std::abs(supply.emf)));
+  }
+  return out;
+}
+
+GroupSpectrum ComputeGroupSpectrum(const Drive& d, const BusSupply& bus, BridgeCache& cache) {
+  const std::vector<CircuitPlan> plans = PlanCircuits(d, bus);
+  const int max_order = cache.max_order();
+  const double v_emf = std::abs(bus.emf) * bus.nominal_v;  // circuit voltage unit, V line-to-line
   GroupSpectrum out;
   out.current.assign(static_cast<std::size_t>(max_order) + 1, Complex{});
   const double emf_angle = std::arg(bus.emf);
   const double base_amps = kBaseVa / (std::sqrt(3.0) * bus.nominal_v);
   for (std::size_t n = 0; n < plans.size(); ++n) {
     const CircuitPlan& c = plans[n];
-    const BridgeSolution& s = cache.Solve(c.parameters, max_order);
+    const SolvedCircuit s = cache.Solve(c.parameters, std::abs(bus.emf));
     const double amps_per_unit = c.rated_va / v_emf;  // circuit current unit in amperes
+    out.interpolated |= s.interpolated;
     for (int h = 1; h <= max_order; ++h) {
       Complex i = s.current[h] * amps_per_unit;
       if (c.parameters.circuit == BridgeCircuit::kSinglePhase) {
@@ -158,9 +186,9 @@ GroupSpectrum ComputeGroupSpectrum(const Drive& d, const BusSupply& bus, int max
       out.peak_current_a = s.peak_current * amps_per_unit;
       out.conduction_deg = s.conduction_deg;
       out.overlap_deg = s.overlap_deg;
-      out.waveform = s.waveform;
+      out.waveform = *s.waveform;
       for (double& t : out.waveform.theta) t += emf_angle;
-      for (double& i : out.waveform.line_current) i *= amps_per_unit;
+      for (double& i : out.waveform.line_current) i *= s.waveform_scale * amps_per_unit;
       for (double& v : out.waveform.terminal_voltage) v *= v_emf;
       for (double& v : out.waveform.dc_voltage) v *= v_emf;
     }

@@ -12,6 +12,7 @@
 #include <vector>
 
 #include "bridge.h"
+#include "bridge_table.h"
 #include "models.h"
 #include "overtone/plant.h"
 
@@ -32,6 +33,7 @@ struct GroupSpectrum {
   double peak_current_a = 0.0;
   double conduction_deg = 0.0;
   double overlap_deg = 0.0;
+  bool interpolated = false;  // from the interpolation nodes rather than its own simulation
   // One period of a representative unit circuit, in amperes and volts, study frame angles.
   BridgeWaveform waveform;
 };
@@ -40,23 +42,46 @@ struct GroupSpectrum {
 // (PLANT-FORMAT.md; common practice, from memory).
 double DefaultDcCapacitance(const Drive& drive, double nominal_v);
 
+// Bridge solutions are exact (one simulation per distinct circuit) while the plant has at most
+// this many distinct circuits; beyond, they are interpolated between shared nodes where that
+// is accurate (bridge_table.h). Small plants, the textbook checks and `overtone spectrum` on
+// them stay exact.
+constexpr int kMaxExactCircuits = 32;
+
 // Shares the solutions of identical circuits: a plant's many identical groups on buses with the
 // same supply impedance simulate once. The key is every parameter of the per-unit circuit.
-// Safe to share between threads.
+// With interpolation on, circuits come from a BridgeTable wherever it serves them. Solutions are
+// kept for the cache's lifetime (across load-flow rounds). Safe to share between threads.
 class BridgeCache {
  public:
-  const BridgeSolution& Solve(const BridgeParameters& p, int max_order);
+  using Key = std::array<double, 10>;
+  explicit BridgeCache(int max_order) : max_order_(max_order), table_(max_order) {}
+
+  // The exact key of a circuit in bridge.h units.
+  Key KeyOf(const BridgeParameters& p) const;
+  void set_interpolate(bool on) { interpolate_ = on; }
+  // `p` on the bus voltage base, on an EMF of `emf` per unit of the bus voltage.
+  SolvedCircuit Solve(const BridgeParameters& p, double emf);
+  int max_order() const { return max_order_; }
+  const BridgeTable& table() const { return table_; }
 
  private:
-  using Key = std::array<double, 10>;
+  const BridgeSolution& SolveExactly(const BridgeParameters& p);
+
+  int max_order_;
+  bool interpolate_ = false;
+  BridgeTable table_;
   std::mutex mutex_;
   std::map<Key, BridgeSolution> solutions_;  // nodes stay put: references remain valid
 };
 
+// The circuits that stand for the group against `supply`, in bridge.h units (their exact keys
+// tell how many distinct circuits a plant has).
+std::vector<BridgeParameters> GroupCircuits(const Drive& drive, const BusSupply& supply);
+
 // Simulates the group's front end against `supply`. Throws SolveError when the operating point
 // cannot be reached, InputError for a combination the model refuses (e.g. firing angle >= 90).
-GroupSpectrum ComputeGroupSpectrum(const Drive& drive, const BusSupply& supply, int max_order,
-                                   BridgeCache& cache);
+GroupSpectrum ComputeGroupSpectrum(const Drive& drive, const BusSupply& supply, BridgeCache& cache);
 
 }  // namespace overtone::internal
 

@@ -3,6 +3,7 @@
 
 #include <cmath>
 #include <memory>
+#include <set>
 
 #include <fmt/format.h>
 
@@ -43,6 +44,18 @@ void NoteModelAssumptions(const Drive& d, std::vector<std::string>& warnings) {
   }
 }
 
+// How many distinct circuits the bridge groups are this round (exact keys).
+std::size_t DistinctCircuits(const Plant& plant, const std::vector<std::size_t>& bridges,
+                             const std::vector<BusSupply>& supplies, const BridgeCache& cache) {
+  std::set<BridgeCache::Key> keys;
+  for (std::size_t n = 0; n < bridges.size(); ++n) {
+    for (const BridgeParameters& p : GroupCircuits(plant.drives[bridges[n]], supplies[n])) {
+      keys.insert(cache.KeyOf(p));
+    }
+  }
+  return keys.size();
+}
+
 }  // namespace
 
 OperatingPoint SolveOperatingPoint(const Plant& plant, const Network& net, int threads,
@@ -68,21 +81,25 @@ OperatingPoint SolveOperatingPoint(const Plant& plant, const Network& net, int t
     bridge_power[n] = Complex{1.0, 0.33} * (d.count * d.power_w * d.loading / kBaseVa);
   }
   const std::vector<Complex> fixed = FixedPowerDrawn(plant, net);
+  // Kept across rounds: exact solutions and interpolation nodes stay valid as the supplies move.
+  BridgeCache cache(max_order);
   for (int round = 1;; ++round) {
     std::vector<Complex> drawn = fixed;
     for (std::size_t n = 0; n < bridges.size(); ++n) drawn[bridge_buses[n]] += bridge_power[n];
     op.flow = SolveLoadFlow(net, drawn);
     op.bridge_iterations = round;
-    BridgeCache cache;  // per round: the supplies the groups see change between rounds
+    std::vector<BusSupply> supplies(bridges.size());
+    for (std::size_t n = 0; n < bridges.size(); ++n) {
+      const Complex v1 = op.flow.voltage[bridge_buses[n]];
+      const Complex i1 = bridge_power[n] == Complex{} ? Complex{} : std::conj(bridge_power[n] / v1);
+      supplies[n] = {net.nominal_v(bridge_buses[n]), net.frequency_hz(), v1 + z_sc[n] * i1, z_sc[n]};
+    }
+    cache.set_interpolate(DistinctCircuits(plant, bridges, supplies, cache) >
+                          static_cast<std::size_t>(kMaxExactCircuits));
     std::vector<GroupSpectrum> spectra(bridges.size());
     ParallelFor(static_cast<int>(bridges.size()), threads, [] { return std::make_unique<int>(0); },
                 [&](int&, int n) {
-                  const Complex v1 = op.flow.voltage[bridge_buses[n]];
-                  const Complex i1 = bridge_power[n] == Complex{} ? Complex{}
-                                                                  : std::conj(bridge_power[n] / v1);
-                  const BusSupply supply{net.nominal_v(bridge_buses[n]), net.frequency_hz(),
-                                         v1 + z_sc[n] * i1, z_sc[n]};
-                  spectra[n] = ComputeGroupSpectrum(plant.drives[bridges[n]], supply, max_order, cache);
+                  spectra[n] = ComputeGroupSpectrum(plant.drives[bridges[n]], supplies[n], cache);
                 });
     double change = 0.0, scale = 0.0;
     for (std::size_t n = 0; n < bridges.size(); ++n) {
