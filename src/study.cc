@@ -1,8 +1,10 @@
 // src/study.cc — the study pipeline: network, load flow, spectra, per-order solves, indices.
 #include "overtone/study.h"
 
+#include <algorithm>
 #include <chrono>
 #include <cmath>
+#include <memory>
 #include <numbers>
 #include <numeric>
 #include <span>
@@ -18,6 +20,7 @@
 #include "network.h"
 #include "operating_point.h"
 #include "overtone/errors.h"
+#include "parallel.h"
 #include "scan.h"
 #include "spectra.h"
 #include "summation.h"
@@ -219,6 +222,17 @@ void SumBySource(Summation rule, const Network& net, const PccMeter& meter, int 
   }
 }
 
+// Calls fill(i) for every i in [0, count) over the threads, in chunks of consecutive items.
+template <typename Fill>
+void ForEachInParallel(int count, int threads, Fill fill) {
+  constexpr int kChunk = 256;
+  internal::ParallelFor((count + kChunk - 1) / kChunk, threads, [] { return std::make_unique<char>(); },
+                        [&](char&, int chunk) {
+                          const int end = std::min(count, (chunk + 1) * kChunk);
+                          for (int i = chunk * kChunk; i < end; ++i) fill(i);
+                        });
+}
+
 // Adds the wall-clock time since the previous lap to a field of the caller's StudyTimings.
 class PhaseClock {
  public:
@@ -298,17 +312,21 @@ StudyResult RunStudy(const Plant& plant, const StudyOptions& options) {
   internal::HarmonicSolution sol = internal::SolveHarmonics(net, injections, max_order, options.threads);
   for (int i = 0; i < net.bus_count(); ++i) sol.voltage[static_cast<std::size_t>(sol.bus_count) + i] = flow.voltage[i];
 
-  for (int i = 0; i < net.bus_count(); ++i) {
-    BusResult b;
+  // Bus and branch spectra with their indices, spread over the threads: each item writes its own
+  // slot only.
+  result.buses.resize(static_cast<std::size_t>(net.bus_count()));
+  ForEachInParallel(net.bus_count(), options.threads, [&](int i) {
+    BusResult& b = result.buses[i];
     b.name = net.bus(i).name;
     b.nominal_v = net.nominal_v(i);
     b.voltage_pu.by_order.resize(static_cast<std::size_t>(max_order) + 1);
     for (int h = 1; h <= max_order; ++h) b.voltage_pu.by_order[h] = sol.at(h, i);
     b.indices = internal::ComputeIndices(b.voltage_pu.by_order, internal::kNegligibleVoltagePu);
-    result.buses.push_back(std::move(b));
-  }
-  for (const auto& br : net.branches()) {
-    BranchResult r;
+  });
+  result.branches.resize(net.branches().size());
+  ForEachInParallel(static_cast<int>(net.branches().size()), options.threads, [&](int k) {
+    const internal::BranchRef& br = net.branches()[k];
+    BranchResult& r = result.branches[k];
     r.name = br.name();
     r.kind = br.transformer ? "transformer" : "cable";
     r.from = net.bus(br.from).name;
@@ -318,8 +336,7 @@ StudyResult RunStudy(const Plant& plant, const StudyOptions& options) {
     r.current_a = Scaled(current, net.BaseAmps(br.from));
     r.indices = internal::ComputeIndices(r.current_a.by_order, internal::kNegligibleCurrentA,
                                            /*with_peak=*/false);  // not reported for branches
-    result.branches.push_back(std::move(r));
-  }
+  });
   for (std::size_t k = 0; k < plant.drives.size(); ++k) {
     const Drive& d = plant.drives[k];
     DriveResult r;

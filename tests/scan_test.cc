@@ -278,6 +278,60 @@ TEST_CASE("Scan results do not depend on the thread count", "[scan]") {
   CHECK(a.str() == b.str());
 }
 
+// A 13.8 kV bus feeding five 480 V buses, each through its own transformer and with its own
+// one-step bank: enough monitored buses for the driving points to come from selected inversion.
+Plant FiveFeederPlant() {
+  Plant plant;
+  plant.study.name = "five feeders";
+  plant.buses = {MakeBus("HV", 13.8)};
+  plant.supplies = {MakeSupply("HV", 250.0, 15.0)};
+  for (int k = 0; k < 5; ++k) {
+    const std::string lv = "LV" + std::to_string(k);
+    plant.buses.push_back(MakeBus(lv, 0.48));
+    plant.transformers.push_back(MakeTransformer("T" + std::to_string(k), "HV", lv, 1000 + 250 * k, 5.75, 11));
+    plant.capacitors.push_back(MakeBank("PFC-" + std::to_string(k), lv, 200.0 + 50.0 * k, 0.48, 1));
+  }
+  plant.drives = {MakeSixPulseDrive("D1", "LV0", 200)};
+  return plant;
+}
+
+TEST_CASE("Driving points by selected inversion equal one solve per bus", "[scan]") {
+  // Two independent ways to Z_ii(h): the diagonal of Y^-1 by Takahashi's equations for all six
+  // buses at once (Takahashi, Fagan & Chen 1973, from memory), and bus i's column of Y^-1 by its
+  // own solve when it is scanned alone.
+  const Plant plant = FiveFeederPlant();
+  ScanOptions all;
+  all.to_order = 20.0;
+  for (const Bus& b : plant.buses) all.buses.push_back(b.name);
+  const ScanResult together = RunScan(plant, all, true);
+  REQUIRE(together.buses.size() == 6);
+  for (std::size_t m = 0; m < together.buses.size(); ++m) {
+    ScanOptions one = all;
+    one.buses = {together.buses[m]};
+    const ScanResult alone = RunScan(plant, one, true);
+    const int c = together.present_configuration;
+    const std::vector<Phasor>& a = together.at(c, static_cast<int>(m)).impedance_ohm;
+    const std::vector<Phasor>& b = alone.at(alone.present_configuration, 0).impedance_ohm;
+    REQUIRE(a.size() == b.size());
+    for (std::size_t k = 0; k < a.size(); ++k) {
+      INFO(together.buses[m] << " at order " << together.orders[k]);
+      CHECK(std::abs(a[k] - b[k]) <= 1e-9 * std::abs(b[k]));
+    }
+    const auto& pa = together.at(c, static_cast<int>(m)).peaks;
+    const auto& pb = alone.at(alone.present_configuration, 0).peaks;
+    REQUIRE(pa.size() == pb.size());
+    for (std::size_t p = 0; p < pa.size(); ++p) CHECK(pa[p].order == Approx(pb[p].order).epsilon(1e-9));
+  }
+  // And the screening of this plant is the same on one thread and on two.
+  ScanOptions one_thread = all, two_threads = all;
+  one_thread.threads = 1;
+  two_threads.threads = 2;
+  std::ostringstream x, y;
+  WriteScanJson({RunScan(plant, one_thread)}, x);
+  WriteScanJson({RunScan(plant, two_threads)}, y);
+  CHECK(x.str() == y.str());
+}
+
 TEST_CASE("Scan options are checked and unknown buses named", "[scan]") {
   std::string error;
   CHECK(ScanOptions{}.IsValid(&error));

@@ -287,7 +287,9 @@ int Run(const Options& o) {
                    sys.swgr, sys.swgr, StandardRating(sys_kva / 0.65, main_sizes));
   }
 
-  const double sc_mva = std::max(500.0, 100.0 * std::ceil(plant_kva * 25.0 / 1e3 / 100.0));
+  // 25 times the load, within the plant format's 500..100,000 MVA.
+  const double sc_mva =
+      std::clamp(100.0 * std::ceil(plant_kva * 25.0 / 1e3 / 100.0), 500.0, 100000.0);
   std::string text;
   text.reserve(static_cast<std::size_t>(o.buses) * 420);
   fmt::format_to(std::back_inserter(text),
