@@ -326,25 +326,40 @@ PeriodicState FindPeriodicState(Simulator& sim, PeriodicState x, int steps_per_s
 // Fourier series of a piecewise-linear interpolant through (theta_n, x_n) over one period:
 // rms cosine phasors X_h = 1/(sqrt(2) pi) * integral x(theta) exp(-j h theta) dtheta, each segment
 // integrated exactly. Switching instants are among the points, so the kinks of the waveform are
-// resolved exactly rather than smeared over a grid step.
+// resolved exactly rather than smeared over a grid step. Summed by parts, so that each point
+// enters once per order, through its jump in value and its change of slope.
 std::vector<Complex> FourierSeries(const std::vector<double>& theta, const std::vector<double>& x,
                                    int max_order) {
+  // Over a segment [n, n+1] of width w and slope s, with a = -j h:
+  //   integral = (x_{n+1} e_{n+1} - x_n e_n) / a - s (e_{n+1} - e_n) / a^2,
+  // so point k gathers alpha_k = x_k (end of the segment before) - x_k (start of the one after)
+  // and beta_k = s (segment before) - s (segment after); zero-width segments are left out.
+  const std::size_t points = theta.size();
+  std::vector<double> alpha(points, 0.0), beta(points, 0.0);
+  for (std::size_t n = 0; n + 1 < points; ++n) {
+    const double width = theta[n + 1] - theta[n];
+    if (width <= 0.0) continue;
+    const double slope = (x[n + 1] - x[n]) / width;
+    alpha[n + 1] += x[n + 1];
+    alpha[n] -= x[n];
+    beta[n + 1] += slope;
+    beta[n] -= slope;
+  }
   std::vector<Complex> out(static_cast<std::size_t>(max_order) + 1);
-  std::vector<Complex> base(theta.size()), power(theta.size(), Complex{1.0, 0.0});
-  for (std::size_t n = 0; n < theta.size(); ++n) base[n] = std::polar(1.0, -theta[n]);
+  std::vector<Complex> base(points), power(points, Complex{1.0, 0.0});
+  for (std::size_t n = 0; n < points; ++n) base[n] = std::polar(1.0, -theta[n]);
   for (int h = 1; h <= max_order; ++h) {
-    // With a = -j h: 1/a = j/h and 1/a^2 = -1/h^2.
-    const Complex inv_a{0.0, 1.0 / h};
-    const double inv_a2 = -1.0 / (static_cast<double>(h) * h);
-    for (std::size_t n = 0; n < theta.size(); ++n) power[n] *= base[n];
-    Complex sum;
-    for (std::size_t n = 0; n + 1 < theta.size(); ++n) {
-      const double width = theta[n + 1] - theta[n];
-      if (width <= 0.0) continue;
-      const Complex e0 = power[n], e1 = power[n + 1];
-      const double slope = (x[n + 1] - x[n]) / width;
-      sum += x[n] * (e1 - e0) * inv_a + slope * (width * e1 * inv_a - (e1 - e0) * inv_a2);
+    double a_re = 0.0, a_im = 0.0, b_re = 0.0, b_im = 0.0;
+    for (std::size_t n = 0; n < points; ++n) {
+      power[n] *= base[n];
+      a_re += alpha[n] * power[n].real();
+      a_im += alpha[n] * power[n].imag();
+      b_re += beta[n] * power[n].real();
+      b_im += beta[n] * power[n].imag();
     }
+    // 1/a = j/h and 1/a^2 = -1/h^2: integral = (j/h) A + (1/h^2) B.
+    const Complex sum = Complex{0.0, 1.0 / h} * Complex{a_re, a_im} +
+                        Complex{b_re, b_im} / (static_cast<double>(h) * h);
     out[h] = sum / (std::sqrt(2.0) * kPi);
   }
   return out;
