@@ -150,12 +150,16 @@ std::optional<BridgeTable::Blend> BridgeTable::BlendAt(const Kind& kind, const P
   const double refine = std::ldexp(1.0, level);
   const double tu = at.u / kStepU * refine, tv = at.v / kStepV * refine;
   const double tw = at.w / kStepW * refine;
-  const bool coarse = level == 0;
-  const Stencil su = coarse ? Cubic(tu) : Linear(tu), sv = coarse ? Quadratic(tv) : Linear(tv);
-  const Stencil sw = at.scale_free ? Stencil{} : (coarse ? Cubic(tw) : Linear(tw));
+  // Cubic in u and w (quadratic in v) on the coarse lattice, quadratic on the next, linear on the
+  // finest: the finer the lattice, the smaller the stencil, the nearer a kink may pass.
+  const auto stencil = [level](double t, bool cubic) {
+    return level == 0 ? (cubic ? Cubic(t) : Quadratic(t)) : level == 1 ? Quadratic(t) : Linear(t);
+  };
+  const Stencil su = stencil(tu, true), sv = stencil(tv, false);
+  const Stencil sw = at.scale_free ? Stencil{} : stencil(tw, true);
   const Index first = {level, su.first, sv.first, sw.first};
   const Index near = {level, static_cast<int>(std::lround(tu)),
-                      coarse ? static_cast<int>(std::lround(tv)) : sv.first,
+                      level < 2 ? static_cast<int>(std::lround(tv)) : sv.first,
                       at.scale_free ? 0 : static_cast<int>(std::lround(tw))};
   const std::size_t orders = static_cast<std::size_t>(max_order_) + 1;
   Blend b;
@@ -224,8 +228,8 @@ std::optional<SolvedCircuit> BridgeTable::Interpolate(const BridgeParameters& p,
   if (std::hypot(r, x) * power < kStiffestSupply) return std::nullopt;
   const Point at = {std::log(std::hypot(r, x) * power), std::log(x / r), std::log(power),
                     p.circuit == BridgeCircuit::kSixPulseStiff};
-  std::optional<Blend> blend = BlendAt(kind, at, 0);
-  if (!blend) blend = BlendAt(kind, at, kFineLevel);
+  std::optional<Blend> blend;
+  for (int level = 0; level <= kFinestLevel && !blend; ++level) blend = BlendAt(kind, at, level);
   if (!blend) return std::nullopt;
   const std::size_t orders = blend->relative.size();
   const Complex fundamental = blend->fundamental;

@@ -12,8 +12,8 @@
 //   u = ln(|Z| P)  (the commutation and ripple scale)   v = ln(X/R)   w = ln P
 // and are solved once, the first time a point needs them, and kept for the later rounds of the
 // load flow. A point is interpolated cubically in u and w and quadratically in v; where that
-// stencil is not trusted, multilinearly in the cell of a lattice four times finer; otherwise the
-// caller solves it directly. A stencil is trusted when all its nodes share one conduction pattern
+// stencil is not trusted, quadratically on a lattice twice as fine, then multilinearly in its
+// cell of a lattice four times finer; otherwise the caller solves it directly. A stencil is trusted when all its nodes share one conduction pattern
 // (the same number of switching instants per period: no pulse splits, merges or overlaps between
 // them) and, for the cubic, when its two inner quadratics agree within 0.1 percentage points.
 // DESIGN.md section 4 allows interpolation when a test shows its error below 0.2 percentage
@@ -68,8 +68,8 @@ class BridgeTable {
   static constexpr double kStepU = 0.3;
   static constexpr double kStepV = 0.5;
   static constexpr double kStepW = 0.25;
-  // The fine lattice is 2^kFineLevel times finer in each direction.
-  static constexpr int kFineLevel = 2;
+  // Lattice level l is 2^l times finer in each direction.
+  static constexpr int kFinestLevel = 2;
 
   int solved_nodes() const;
 
