@@ -465,19 +465,29 @@ BridgeSolution Evaluate(const BridgeParameters& p, double parameter, PeriodicSta
 
 // The free parameter that reaches the requested power: the DC load conductance (P ~ G V_dc^2,
 // V_dc ~ 1.35 V) or the DC current (P ~ 1.35 V cos(alpha) I_d), by secant steps.
-BridgeSolution ReachPower(const BridgeParameters& p) {
+BridgeSolution ReachPower(const BridgeParameters& p, const BridgeStart* from) {
   const bool stiff = p.circuit == BridgeCircuit::kSixPulseStiff;
   PeriodicState warm;
   if (!stiff) warm.z[kVdc] = std::sqrt(2.0);  // open bridge, DC link at the line-to-line peak
   if (p.power <= 0.0) return Evaluate(p, stiff ? 0.0 : 1e-9, warm, true);
   double x0 = stiff ? p.power / (1.35 * std::cos(p.firing_deg * kPi / 180.0))
                     : p.power / (1.35 * 1.35);
+  if (from != nullptr && from->power > 0.0 && from->level > 0.0) {
+    // Both levels are about proportional to the power.
+    x0 = from->level * p.power / from->power;
+    for (int k = 0; k < 4; ++k) warm.z[k] = from->state[k];
+    warm.topology = from->topology;
+  }
   double p0 = Evaluate(p, x0, warm, false).power;
   double x1 = x0 * p.power / std::max(p0, 1e-12);
   for (int it = 0; it < 40; ++it) {
     const double p1 = Evaluate(p, x1, warm, false).power;
     // The period is sampled once, at the level found (its steady state is already in `warm`).
-    if (std::abs(p1 - p.power) <= 1e-9 + 1e-7 * p.power) return Evaluate(p, x1, warm, true);
+    if (std::abs(p1 - p.power) <= 1e-9 + 1e-7 * p.power) {
+      BridgeSolution s = Evaluate(p, x1, warm, true);
+      s.start = {x1, p1, {warm.z[0], warm.z[1], warm.z[2], warm.z[3]}, warm.topology};
+      return s;
+    }
     const double slope = (p1 - p0) / (x1 - x0);
     double x2 = slope > 0.0 ? x1 + (p.power - p1) / slope : 2.0 * x1;
     x2 = std::clamp(x2, 0.25 * x1, 4.0 * x1);
@@ -493,8 +503,8 @@ BridgeSolution ReachPower(const BridgeParameters& p) {
 
 }  // namespace
 
-BridgeSolution SolveBridge(const BridgeParameters& p, int max_order) {
-  BridgeSolution s = ReachPower(p);
+BridgeSolution SolveBridge(const BridgeParameters& p, int max_order, const BridgeStart* from) {
+  BridgeSolution s = ReachPower(p, from);
   s.current = FourierSeries(s.samples_theta, s.samples_current, max_order);
   return s;
 }

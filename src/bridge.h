@@ -9,6 +9,7 @@
 #ifndef OVERTONE_INTERNAL_BRIDGE_H_
 #define OVERTONE_INTERNAL_BRIDGE_H_
 
+#include <array>
 #include <complex>
 #include <vector>
 
@@ -39,6 +40,14 @@ struct BridgeWaveform {
   std::vector<double> dc_voltage;
 };
 
+// Where a solved circuit ended up, to start a neighbouring circuit from (fewer iterations).
+struct BridgeStart {
+  double level = 0.0;  // the load conductance (capacitor links) or DC current (stiff links) found
+  double power = 0.0;  // the power drawn at that level
+  std::array<double, 4> state = {};  // circuit states at the start of the symmetry segment
+  int topology = 0;
+};
+
 struct BridgeSolution {
   // Rms cosine phasors of the drawn line current at orders 0..max_order, EMF frame.
   std::vector<std::complex<double>> current;
@@ -52,12 +61,16 @@ struct BridgeSolution {
   // unit): the points of the piecewise-linear interpolant whose Fourier series is `current`.
   std::vector<double> samples_theta;
   std::vector<double> samples_current;
+  BridgeStart start;
 };
 
 // Solves the periodic steady state at the requested power: for capacitor circuits by adjusting
 // the DC load resistance, for stiff circuits the DC current. Throws SolveError when the power
-// cannot be reached (e.g. beyond what the supply can deliver).
-BridgeSolution SolveBridge(const BridgeParameters& p, int max_order);
+// cannot be reached (e.g. beyond what the supply can deliver). `from`, the end of a similar
+// circuit's solve, only changes where the iterations start: the result is the same within the
+// solver's tolerances (1e-7 of the power, 1e-11 of the state).
+BridgeSolution SolveBridge(const BridgeParameters& p, int max_order,
+                           const BridgeStart* from = nullptr);
 
 }  // namespace overtone::internal
 

@@ -123,9 +123,19 @@ const BridgeTable::Node& BridgeTable::Solved(const Kind& kind, Index index) {
   const double phi = std::atan(std::exp(index[2] * kStepV / refine));  // arg Z from ln(X/R)
   p.r_supply = z * std::cos(phi);
   p.x_supply = z * std::sin(phi);
+  // Finer nodes start from the coarse node nearest to them (a fixed choice: the result does not
+  // depend on which nodes happen to be solved already).
+  const BridgeStart* from = nullptr;
+  if (index[0] > 0) {
+    const double coarser = std::ldexp(1.0, -index[0]);
+    const Node& parent = Solved(kind, {0, static_cast<int>(std::lround(index[1] * coarser)),
+                                       static_cast<int>(std::lround(index[2] * coarser)),
+                                       static_cast<int>(std::lround(index[3] * coarser))});
+    if (!parent.failed) from = &parent.start;
+  }
   BridgeSolution s;
   try {
-    s = SolveBridge(p, max_order_);
+    s = SolveBridge(p, max_order_, from);
   } catch (const SolveError&) {  // e.g. a node beyond what the supply can deliver
     node->failed = true;
     return *node;
@@ -137,6 +147,7 @@ const BridgeTable::Node& BridgeTable::Solved(const Kind& kind, Index index) {
     node->relative[h] = s.current[h] * std::polar(1.0 / m1, -static_cast<double>(h) * a1);
   }
   node->pattern = s.samples_theta.size();
+  node->start = s.start;
   node->dc_voltage = s.dc_voltage;
   node->peak_current = s.peak_current;
   node->conduction_deg = s.conduction_deg;

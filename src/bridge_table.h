@@ -85,6 +85,7 @@ class BridgeTable {
     std::vector<std::complex<double>> relative;  // I_h exp(-j h arg I_1) / |I_1|, orders 0..
     double dc_voltage = 0.0, peak_current = 0.0, conduction_deg = 0.0, overlap_deg = 0.0;
     std::size_t pattern = 0;  // points of the sampled period: the grid plus switching instants
+    BridgeStart start;
     BridgeWaveform waveform;
   };
   // A point in lattice units of the coarse lattice; scale-free circuits have no w.
