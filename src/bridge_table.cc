@@ -111,6 +111,7 @@ const BridgeTable::Node& BridgeTable::Solved(const Kind& kind, Index index) {
   std::lock_guard lock(node->mutex);
   if (node->done) return *node;
   node->done = true;
+  node->failed = true;  // until its solution is in place, whatever escapes below
   BridgeParameters p;
   p.circuit = static_cast<BridgeCircuit>(kind[0]);
   p.thyristor = kind[1] != 0.0;
@@ -137,7 +138,6 @@ const BridgeTable::Node& BridgeTable::Solved(const Kind& kind, Index index) {
   try {
     s = SolveBridge(p, max_order_, from);
   } catch (const SolveError&) {  // e.g. a node beyond what the supply can deliver
-    node->failed = true;
     return *node;
   }
   node->fundamental = s.current[1];
@@ -153,6 +153,7 @@ const BridgeTable::Node& BridgeTable::Solved(const Kind& kind, Index index) {
   node->conduction_deg = s.conduction_deg;
   node->overlap_deg = s.overlap_deg;
   node->waveform = std::move(s.waveform);
+  node->failed = false;
   return *node;
 }
 
