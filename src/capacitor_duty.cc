@@ -10,6 +10,8 @@
 
 #include <algorithm>
 #include <cmath>
+#include <string_view>
+#include <unordered_map>
 
 #include "indices.h"
 #include "models.h"
@@ -105,9 +107,9 @@ CapacitorDuty FilterDuty(const Filter& filter, double bus_nominal_v,
 }
 
 std::vector<CapacitorDuty> CapacitorDuties(const Plant& plant, const std::vector<BusResult>& buses) {
-  const auto bus = [&](const std::string& name) -> const BusResult& {
-    return *std::find_if(buses.begin(), buses.end(), [&](const BusResult& b) { return b.name == name; });
-  };
+  std::unordered_map<std::string_view, const BusResult*> by_name;  // one pass, not one per bank
+  for (const BusResult& b : buses) by_name.emplace(b.name, &b);
+  const auto bus = [&](const std::string& name) -> const BusResult& { return *by_name.at(name); };
   std::vector<CapacitorDuty> duties;
   for (const Capacitor& c : plant.capacitors) {
     const BusResult& b = bus(c.bus);

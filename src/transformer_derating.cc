@@ -3,6 +3,8 @@
 
 #include <algorithm>
 #include <cmath>
+#include <string_view>
+#include <unordered_map>
 
 namespace overtone::internal {
 
@@ -25,14 +27,20 @@ double DeratedCurrent(double harmonic_loss_factor, double eddy_loss) {
 
 std::vector<TransformerDerating> TransformerDeratings(const Plant& plant,
                                                       const std::vector<BranchResult>& branches) {
+  // Names looked up through maps built once, so the cost stays linear in the plant's size.
+  std::unordered_map<std::string_view, const BranchResult*> transformer_branch;
+  for (const BranchResult& b : branches) {
+    if (b.kind == "transformer") transformer_branch.emplace(b.name, &b);
+  }
+  std::unordered_map<std::string_view, const Bus*> bus_by_name;
+  for (const Bus& b : plant.buses) bus_by_name.emplace(b.name, &b);
   std::vector<TransformerDerating> out;
   for (const Transformer& t : plant.transformers) {
-    const auto branch = std::find_if(branches.begin(), branches.end(), [&](const BranchResult& b) {
-      return b.kind == "transformer" && b.name == t.name;
-    });
-    const auto from = std::find_if(plant.buses.begin(), plant.buses.end(),
-                                   [&](const Bus& b) { return b.name == t.from; });
-    if (branch == branches.end() || from == plant.buses.end()) continue;
+    const auto branch_it = transformer_branch.find(t.name);
+    const auto from_it = bus_by_name.find(t.from);
+    if (branch_it == transformer_branch.end() || from_it == bus_by_name.end()) continue;
+    const BranchResult* branch = branch_it->second;
+    const Bus* from = from_it->second;
     const std::vector<Phasor>& i = branch->current_a.by_order;
     TransformerDerating d;
     d.name = t.name;
