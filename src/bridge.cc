@@ -273,16 +273,27 @@ struct PeriodicState {
   int topology = 0;
 };
 
+constexpr int kCircuitStates = 4;
+using CircuitStates = Eigen::Matrix<double, kCircuitStates, 1>;
+
+// The Jacobian of F(x) - x below, kept between the solves of one circuit at neighbouring levels:
+// a step with a kept Jacobian costs one segment, a fresh finite-difference one five.
+struct ShootingJacobian {
+  Eigen::Matrix<double, kCircuitStates, kCircuitStates> matrix;
+  bool valid = false;
+};
+
 // Finds the fixed point of the symmetry segment map F(x) = R(Phi(x)) (Phi: one segment of the
 // circuit, R: the symmetry that maps its end back to theta0) by Newton's method on F(x) - x with
 // a finite-difference Jacobian (shooting; e.g. T. J. Aprille, T. N. Trick, Proc. IEEE 60(1),
-// 1972), after two plain iterations for a good start. A step that does not reduce the residual
-// falls back to the plain iteration, which contracts for these damped circuits.
+// 1972), after two plain iterations for a good start. A Jacobian kept from a neighbouring level
+// is reused and corrected by Broyden's update (C. G. Broyden, Math. Comp. 19(92), 1965) while
+// it halves the residual at each step, and computed afresh otherwise. A fresh step that does not
+// reduce the residual falls back to the plain iteration, which contracts for these damped
+// circuits.
 template <typename RotateFn>
 PeriodicState FindPeriodicState(Simulator& sim, PeriodicState x, int steps_per_segment,
-                                double theta0, RotateFn rotate) {
-  constexpr int kCircuitStates = 4;
-  using Circuit = Eigen::Matrix<double, kCircuitStates, 1>;
+                                double theta0, RotateFn rotate, ShootingJacobian& jacobian) {
   const auto segment = [&](PeriodicState s) {
     sim.Settle(s.z, s.topology);
     sim.Run(s.z, s.topology, steps_per_segment);
@@ -290,34 +301,52 @@ PeriodicState FindPeriodicState(Simulator& sim, PeriodicState x, int steps_per_s
     sim.Settle(s.z, s.topology);
     return s;
   };
-  const auto residual = [](const PeriodicState& from, const PeriodicState& to) -> Circuit {
+  const auto residual = [](const PeriodicState& from, const PeriodicState& to) -> CircuitStates {
     return (to.z - from.z).head<kCircuitStates>();
   };
   sim.Settle(x.z, x.topology);
+  PeriodicState y = segment(x);
+  CircuitStates r = residual(x, y);
   for (int n = 0; n < 200; ++n) {
-    const PeriodicState y = segment(x);
-    const Circuit r = residual(x, y);
     const double scale = std::max(1.0, y.z.head<kCircuitStates>().lpNorm<Eigen::Infinity>());
-    if (r.lpNorm<Eigen::Infinity>() < 1e-11 * scale) return y;
-    if (n < 2) {
+    const double size = r.lpNorm<Eigen::Infinity>();
+    if (size < 1e-11 * scale) return y;
+    const bool fresh = !jacobian.valid;
+    if (fresh && n < 2) {
       x = y;
+      y = segment(x);
+      r = residual(x, y);
       continue;
     }
-    Eigen::Matrix<double, kCircuitStates, kCircuitStates> jacobian;
-    for (int j = 0; j < kCircuitStates; ++j) {
-      PeriodicState xp = x;
-      const double delta = 1e-7 * std::max(1.0, std::abs(x.z[j]));
-      xp.z[j] += delta;
-      jacobian.col(j) = (residual(xp, segment(xp)) - r) / delta;
+    if (fresh) {
+      for (int j = 0; j < kCircuitStates; ++j) {
+        PeriodicState xp = x;
+        const double delta = 1e-7 * std::max(1.0, std::abs(x.z[j]));
+        xp.z[j] += delta;
+        jacobian.matrix.col(j) = (residual(xp, segment(xp)) - r) / delta;
+      }
+      jacobian.valid = true;
     }
-    const Circuit step = -jacobian.fullPivLu().solve(r);
+    const CircuitStates step = -jacobian.matrix.fullPivLu().solve(r);
     PeriodicState trial = x;
     trial.z.head<kCircuitStates>() += step;
-    const Circuit trial_residual = residual(trial, segment(trial));
-    if (step.allFinite() && trial_residual.lpNorm<Eigen::Infinity>() < r.lpNorm<Eigen::Infinity>()) {
+    const PeriodicState trial_end = segment(trial);
+    const CircuitStates trial_residual = residual(trial, trial_end);
+    const double trial_size = trial_residual.lpNorm<Eigen::Infinity>();
+    if (step.allFinite() && trial_size < size) {
+      jacobian.matrix += (trial_residual - r - jacobian.matrix * step) * step.transpose() /
+                         step.squaredNorm();
+      if (!fresh && trial_size > 0.5 * size) jacobian.valid = false;
       x = trial;
-    } else {
+      y = trial_end;
+      r = trial_residual;
+    } else if (fresh) {
+      jacobian.valid = false;
       x = y;
+      y = segment(x);
+      r = residual(x, y);
+    } else {
+      jacobian.valid = false;  // retried from x with a fresh one
     }
   }
   throw SolveError("bridge simulation: no periodic steady state after 200 shooting steps");
@@ -346,16 +375,23 @@ std::vector<Complex> FourierSeries(const std::vector<double>& theta, const std::
     beta[n] -= slope;
   }
   std::vector<Complex> out(static_cast<std::size_t>(max_order) + 1);
-  std::vector<Complex> base(points), power(points, Complex{1.0, 0.0});
-  for (std::size_t n = 0; n < points; ++n) base[n] = std::polar(1.0, -theta[n]);
+  // exp(-j h theta_n) by repeated products, real and imaginary parts apart so that the loop
+  // vectorises (a std::complex product checks for infinities and does not).
+  std::vector<double> base_re(points), base_im(points), re(points, 1.0), im(points, 0.0);
+  for (std::size_t n = 0; n < points; ++n) {
+    base_re[n] = std::cos(theta[n]);
+    base_im[n] = -std::sin(theta[n]);
+  }
   for (int h = 1; h <= max_order; ++h) {
     double a_re = 0.0, a_im = 0.0, b_re = 0.0, b_im = 0.0;
     for (std::size_t n = 0; n < points; ++n) {
-      power[n] *= base[n];
-      a_re += alpha[n] * power[n].real();
-      a_im += alpha[n] * power[n].imag();
-      b_re += beta[n] * power[n].real();
-      b_im += beta[n] * power[n].imag();
+      const double next_re = re[n] * base_re[n] - im[n] * base_im[n];
+      im[n] = re[n] * base_im[n] + im[n] * base_re[n];
+      re[n] = next_re;
+      a_re += alpha[n] * re[n];
+      a_im += alpha[n] * im[n];
+      b_re += beta[n] * re[n];
+      b_im += beta[n] * im[n];
     }
     // 1/a = j/h and 1/a^2 = -1/h^2: integral = (j/h) A + (1/h^2) B.
     const Complex sum = Complex{0.0, 1.0 / h} * Complex{a_re, a_im} +
@@ -437,12 +473,13 @@ BridgeSolution SegmentPower(const BridgeParameters& p, Simulator& sim, PeriodicS
 // Steady state for one value of the free parameter (load conductance or DC current): with
 // `sampled`, the full period's samples and figures; otherwise the power alone.
 BridgeSolution Evaluate(const BridgeParameters& p, double parameter, PeriodicState& warm,
-                        bool sampled) {
+                        ShootingJacobian& jacobian, bool sampled) {
   const double dt = 2.0 * kPi / kSamplesPerCycle;
   if (p.circuit == BridgeCircuit::kSinglePhase) {
     SinglePhaseCircuit circuit(p, parameter);
     Simulator sim(circuit, dt);
-    warm = FindPeriodicState(sim, warm, kSamplesPerCycle / 2, 0.0, SinglePhaseCircuit::Rotate);
+    warm = FindPeriodicState(sim, warm, kSamplesPerCycle / 2, 0.0, SinglePhaseCircuit::Rotate,
+                             jacobian);
     return sampled ? SampleCycle(p, sim, warm, 0.0) : SegmentPower(p, sim, warm, kSamplesPerCycle / 2);
   }
   SixPulseCircuit circuit(p, parameter);
@@ -459,7 +496,8 @@ BridgeSolution Evaluate(const BridgeParameters& p, double parameter, PeriodicSta
     warm.topology = Encode({1, 0, -1});
   }
   SetTheta(warm.z, theta0);
-  warm = FindPeriodicState(sim, warm, kSamplesPerCycle / 6, theta0, SixPulseCircuit::Rotate);
+  warm = FindPeriodicState(sim, warm, kSamplesPerCycle / 6, theta0, SixPulseCircuit::Rotate,
+                           jacobian);
   return sampled ? SampleCycle(p, sim, warm, theta0) : SegmentPower(p, sim, warm, kSamplesPerCycle / 6);
 }
 
@@ -468,8 +506,9 @@ BridgeSolution Evaluate(const BridgeParameters& p, double parameter, PeriodicSta
 BridgeSolution ReachPower(const BridgeParameters& p, const BridgeStart* from) {
   const bool stiff = p.circuit == BridgeCircuit::kSixPulseStiff;
   PeriodicState warm;
+  ShootingJacobian jacobian;
   if (!stiff) warm.z[kVdc] = std::sqrt(2.0);  // open bridge, DC link at the line-to-line peak
-  if (p.power <= 0.0) return Evaluate(p, stiff ? 0.0 : 1e-9, warm, true);
+  if (p.power <= 0.0) return Evaluate(p, stiff ? 0.0 : 1e-9, warm, jacobian, true);
   double x0 = stiff ? p.power / (1.35 * std::cos(p.firing_deg * kPi / 180.0))
                     : p.power / (1.35 * 1.35);
   if (from != nullptr && from->power > 0.0 && from->level > 0.0) {
@@ -478,13 +517,13 @@ BridgeSolution ReachPower(const BridgeParameters& p, const BridgeStart* from) {
     for (int k = 0; k < 4; ++k) warm.z[k] = from->state[k];
     warm.topology = from->topology;
   }
-  double p0 = Evaluate(p, x0, warm, false).power;
+  double p0 = Evaluate(p, x0, warm, jacobian, false).power;
   double x1 = x0 * p.power / std::max(p0, 1e-12);
   for (int it = 0; it < 40; ++it) {
-    const double p1 = Evaluate(p, x1, warm, false).power;
+    const double p1 = Evaluate(p, x1, warm, jacobian, false).power;
     // The period is sampled once, at the level found (its steady state is already in `warm`).
     if (std::abs(p1 - p.power) <= 1e-9 + 1e-7 * p.power) {
-      BridgeSolution s = Evaluate(p, x1, warm, true);
+      BridgeSolution s = Evaluate(p, x1, warm, jacobian, true);
       s.start = {x1, p1, {warm.z[0], warm.z[1], warm.z[2], warm.z[3]}, warm.topology};
       return s;
     }

@@ -6,7 +6,8 @@
 // sinusoidal sources are part of an autonomous linear system z' = A z within each topology.
 // Across a grid step the exact propagator expm(A d) is used (cached per topology); a switching
 // instant is where a switching function g(z) = G_k z rises through zero, located to round-off
-// inside the step by safeguarded Newton iterations on the exact trajectory expm(A tau) z.
+// inside the step by safeguarded Newton iterations on the exact trajectory expm(A tau) z, whose
+// points are summed as Taylor series in short substeps (matrix-vector products only).
 #ifndef OVERTONE_INTERNAL_SWITCHED_CIRCUIT_H_
 #define OVERTONE_INTERNAL_SWITCHED_CIRCUIT_H_
 
@@ -72,6 +73,7 @@ class Simulator {
   struct Cached {
     Topology topology;
     StateMatrix step;  // expm(a * step_)
+    double norm;       // |a|_1
   };
   const Cached& Get(int topology);
   void Advance(StateVector& z, int& topology, const SwitchFn& on_switch);
