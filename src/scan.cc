@@ -87,6 +87,9 @@ constexpr double kRefineTolerance = 1e-9;  // orders
 constexpr std::size_t kSelectedInversionFrom = 4;
 // Grid points around a peak through which its admittance is interpolated.
 constexpr std::size_t kPeakWindow = 5;
+// The base network (no banks or filters) is smooth: its curve is swept at every kBaseStride-th
+// grid point only, and interpolated the same way at a peak for the amplification.
+constexpr std::size_t kBaseStride = 5;
 
 Plant WithoutShunts(const Plant& plant, bool keep_filters) {
   Plant p = plant;
@@ -177,11 +180,6 @@ class ScanWorker {
     }
   }
 
-  // Grid points [first, last) of the configured network (or of the base network) into `out`.
-  void Sweep(std::size_t first, std::size_t last, bool base, SweepBuffers& out) {
-    for (std::size_t k = first; k < last; ++k) SweepPoint(k, base, out);
-  }
-
   // Grid point k: the monitored buses' driving points and, when `out` has room for them, the
   // transfer impedances from the drive buses.
   void SweepPoint(std::size_t k, bool base, SweepBuffers& out) {
@@ -250,11 +248,21 @@ bool IsGridMaximum(const std::vector<Complex>& z, std::size_t k) {
   return here > std::abs(z[k - 1]) * (1.0 + 1e-9) && here >= std::abs(z[k + 1]);
 }
 
-// The grid points [first, first + kPeakWindow) around grid point k (clipped to the grid) through
-// which a peak at k is interpolated.
-std::size_t WindowStart(std::size_t k, std::size_t points) {
-  if (points <= kPeakWindow) return 0;
-  return std::min(k < kPeakWindow / 2 ? 0 : k - kPeakWindow / 2, points - kPeakWindow);
+// Grid points first, first + stride, ... (count of them) through which a curve is interpolated.
+struct Window {
+  std::size_t first = 0, stride = 1, count = 0;
+  std::size_t at(std::size_t j) const { return first + j * stride; }
+};
+
+// The kPeakWindow points around grid point k of the grid thinned to every stride-th point
+// (clipped to the grid; the full grid when the thinned one is too short).
+Window WindowAround(std::size_t k, std::size_t points, std::size_t stride) {
+  if ((points - 1) / stride + 1 < kPeakWindow) stride = 1;
+  const std::size_t thinned = (points - 1) / stride + 1;
+  const std::size_t centre = std::min((k + stride / 2) / stride, thinned - 1);
+  std::size_t first = centre < kPeakWindow / 2 ? 0 : centre - kPeakWindow / 2;
+  if (thinned >= kPeakWindow) first = std::min(first, thinned - kPeakWindow);
+  return {first * stride, stride, std::min(kPeakWindow, thinned)};
 }
 
 // 1/Z at order h by Lagrange interpolation through the window's grid points. Near a parallel
@@ -262,15 +270,14 @@ std::size_t WindowStart(std::size_t k, std::size_t points) {
 // through a few points reproduces it closely (a series R-L with a shunt C: 1/Z is analytic there,
 // with its nearest singularity at the R-L branch's pole, far from the real axis when X/R is high).
 Complex InterpolatedAdmittance(const std::vector<double>& orders, const std::vector<Complex>& z,
-                               std::size_t first, double h) {
-  const std::size_t last = std::min(orders.size(), first + kPeakWindow);
+                               const Window& w, double h) {
   Complex y;
-  for (std::size_t i = first; i < last; ++i) {
+  for (std::size_t i = 0; i < w.count; ++i) {
     double weight = 1.0;
-    for (std::size_t j = first; j < last; ++j) {
-      if (j != i) weight *= (h - orders[j]) / (orders[i] - orders[j]);
+    for (std::size_t j = 0; j < w.count; ++j) {
+      if (j != i) weight *= (h - orders[w.at(j)]) / (orders[w.at(i)] - orders[w.at(j)]);
     }
-    y += weight / z[i];
+    y += weight / z[w.at(i)];
   }
   return y;
 }
@@ -284,8 +291,8 @@ std::vector<ResonancePeak> CurvePeaks(const std::vector<double>& orders, const s
   for (std::size_t k = 1; k + 1 < z.size(); ++k) {
     if (!IsGridMaximum(z, k)) continue;
     const double here = std::abs(z[k]);
-    const std::size_t first = WindowStart(k, z.size());
-    const auto y = [&](double h) { return std::abs(InterpolatedAdmittance(orders, z, first, h)); };
+    const Window own = WindowAround(k, z.size(), 1);
+    const auto y = [&](double h) { return std::abs(InterpolatedAdmittance(orders, z, own, h)); };
     const double g = (std::sqrt(5.0) - 1.0) / 2.0;
     double lo = orders[k - 1], hi = orders[k + 1];
     double c = hi - g * (hi - lo), d = lo + g * (hi - lo), yc = y(c), yd = y(d);
@@ -300,7 +307,8 @@ std::vector<ResonancePeak> CurvePeaks(const std::vector<double>& orders, const s
     }
     ResonancePeak p{0.5 * (lo + hi), 1.0 / y(0.5 * (lo + hi))};
     if (!(p.impedance_ohm >= here)) p = {orders[k], here};  // the sample itself is the better bound
-    p.amplification = p.impedance_ohm * std::abs(InterpolatedAdmittance(orders, base, first, p.order));
+    const Window thinned = WindowAround(k, z.size(), kBaseStride);
+    p.amplification = p.impedance_ohm * std::abs(InterpolatedAdmittance(orders, base, thinned, p.order));
     peaks.push_back(p);
   }
   return peaks;
@@ -310,8 +318,8 @@ std::vector<ResonancePeak> CurvePeaks(const std::vector<double>& orders, const s
 void MarkPeakWindows(const std::vector<Complex>& z, std::vector<char>& needed) {
   for (std::size_t k = 1; k + 1 < z.size(); ++k) {
     if (!IsGridMaximum(z, k)) continue;
-    const std::size_t first = WindowStart(k, z.size());
-    for (std::size_t i = first; i < std::min(z.size(), first + kPeakWindow); ++i) needed[i] = 1;
+    const Window thinned = WindowAround(k, z.size(), kBaseStride);
+    for (std::size_t j = 0; j < thinned.count; ++j) needed[thinned.at(j)] = 1;
   }
 }
 
