@@ -420,6 +420,7 @@ int Run(const Args& a) {
   StudyOptions options;
   options.scan = false;
   options.keep_waveforms = !a.waveform.empty() || !a.svg.empty();
+  options.exact_drive = a.drive;  // its own simulation, also where other groups are interpolated
   const StudyResult result = RunStudy(plant, options);
   const auto group = std::find_if(result.drives.begin(), result.drives.end(),
                                   [&](const DriveResult& g) { return g.name == a.drive; });

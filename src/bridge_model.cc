@@ -133,8 +133,8 @@ const BridgeSolution& BridgeCache::SolveExactly(const BridgeParameters& p) {
   return solutions_.emplace(key, std::move(solution)).first->second;
 }
 
-SolvedCircuit BridgeCache::Solve(const BridgeParameters& p, double emf) {
-  if (interpolate_) {
+SolvedCircuit BridgeCache::Solve(const BridgeParameters& p, double emf, bool exact) {
+  if (interpolate_ && !exact) {
     if (std::optional<SolvedCircuit> s = table_.Interpolate(p, emf)) return *std::move(s);
   }
   const BridgeSolution& s = SolveExactly(OnEmfBase(p, emf));
@@ -155,7 +155,8 @@ std::vector<BridgeParameters> GroupCircuits(const Drive& drive, const BusSupply&
   return out;
 }
 
-GroupSpectrum ComputeGroupSpectrum(const Drive& d, const BusSupply& bus, BridgeCache& cache) {
+GroupSpectrum ComputeGroupSpectrum(const Drive& d, const BusSupply& bus, BridgeCache& cache,
+                                   bool exact) {
   const std::vector<CircuitPlan> plans = PlanCircuits(d, bus);
   const int max_order = cache.max_order();
   const double v_emf = std::abs(bus.emf) * bus.nominal_v;  // circuit voltage unit, V line-to-line
@@ -165,7 +166,7 @@ GroupSpectrum ComputeGroupSpectrum(const Drive& d, const BusSupply& bus, BridgeC
   const double base_amps = kBaseVa / (std::sqrt(3.0) * bus.nominal_v);
   for (std::size_t n = 0; n < plans.size(); ++n) {
     const CircuitPlan& c = plans[n];
-    const SolvedCircuit s = cache.Solve(c.parameters, std::abs(bus.emf));
+    const SolvedCircuit s = cache.Solve(c.parameters, std::abs(bus.emf), exact);
     const double amps_per_unit = c.rated_va / v_emf;  // circuit current unit in amperes
     out.interpolated |= s.interpolated;
     for (int h = 1; h <= max_order; ++h) {
@@ -186,16 +187,24 @@ GroupSpectrum ComputeGroupSpectrum(const Drive& d, const BusSupply& bus, BridgeC
       out.peak_current_a = s.peak_current * amps_per_unit;
       out.conduction_deg = s.conduction_deg;
       out.overlap_deg = s.overlap_deg;
-      out.waveform = *s.waveform;
-      for (double& t : out.waveform.theta) t += emf_angle;
-      for (double& i : out.waveform.line_current) i *= s.waveform_scale * amps_per_unit;
-      for (double& v : out.waveform.terminal_voltage) v *= v_emf;
-      for (double& v : out.waveform.dc_voltage) v *= v_emf;
     }
   }
   const Complex v1 = bus.emf - bus.impedance * out.current[1];
   out.power = v1 * std::conj(out.current[1]);
   return out;
+}
+
+BridgeWaveform GroupWaveform(const Drive& d, const BusSupply& bus, BridgeCache& cache, bool exact) {
+  const CircuitPlan c = PlanCircuits(d, bus).front();
+  const SolvedCircuit s = cache.Solve(c.parameters, std::abs(bus.emf), exact);
+  const double v_emf = std::abs(bus.emf) * bus.nominal_v;
+  const double amps = s.waveform_scale * c.rated_va / v_emf;
+  BridgeWaveform w = *s.waveform;
+  for (double& t : w.theta) t += std::arg(bus.emf);
+  for (double& i : w.line_current) i *= amps;
+  for (double& v : w.terminal_voltage) v *= v_emf;
+  for (double& v : w.dc_voltage) v *= v_emf;
+  return w;
 }
 
 }  // namespace overtone::internal

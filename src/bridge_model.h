@@ -34,7 +34,8 @@ struct GroupSpectrum {
   double conduction_deg = 0.0;
   double overlap_deg = 0.0;
   bool interpolated = false;  // from the interpolation nodes rather than its own simulation
-  // One period of a representative unit circuit, in amperes and volts, study frame angles.
+  // One period of a representative unit circuit, in amperes and volts, study frame angles
+  // (GroupWaveform; left empty by ComputeGroupSpectrum).
   BridgeWaveform waveform;
 };
 
@@ -60,8 +61,9 @@ class BridgeCache {
   // The exact key of a circuit in bridge.h units.
   Key KeyOf(const BridgeParameters& p) const;
   void set_interpolate(bool on) { interpolate_ = on; }
-  // `p` on the bus voltage base, on an EMF of `emf` per unit of the bus voltage.
-  SolvedCircuit Solve(const BridgeParameters& p, double emf);
+  // `p` on the bus voltage base, on an EMF of `emf` per unit of the bus voltage; `exact` asks
+  // for its own simulation even with interpolation on.
+  SolvedCircuit Solve(const BridgeParameters& p, double emf, bool exact);
   int max_order() const { return max_order_; }
   const BridgeTable& table() const { return table_; }
 
@@ -79,9 +81,16 @@ class BridgeCache {
 // tell how many distinct circuits a plant has).
 std::vector<BridgeParameters> GroupCircuits(const Drive& drive, const BusSupply& supply);
 
-// Simulates the group's front end against `supply`. Throws SolveError when the operating point
-// cannot be reached, InputError for a combination the model refuses (e.g. firing angle >= 90).
-GroupSpectrum ComputeGroupSpectrum(const Drive& drive, const BusSupply& supply, BridgeCache& cache);
+// Simulates the group's front end against `supply` (with `exact`, by its own simulation even
+// where the cache interpolates). Throws SolveError when the operating point cannot be reached,
+// InputError for a combination the model refuses (e.g. firing angle >= 90).
+GroupSpectrum ComputeGroupSpectrum(const Drive& drive, const BusSupply& supply, BridgeCache& cache,
+                                   bool exact);
+
+// One period of the group's representative unit circuit against `supply`, in amperes and volts,
+// study frame angles: kept apart from the spectrum since only charts and CSV files need it.
+BridgeWaveform GroupWaveform(const Drive& drive, const BusSupply& supply, BridgeCache& cache,
+                             bool exact);
 
 }  // namespace overtone::internal
 

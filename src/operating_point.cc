@@ -58,8 +58,8 @@ std::size_t DistinctCircuits(const Plant& plant, const std::vector<std::size_t>&
 
 }  // namespace
 
-OperatingPoint SolveOperatingPoint(const Plant& plant, const Network& net, int threads,
-                                   std::vector<std::string>& warnings) {
+OperatingPoint SolveOperatingPoint(const Plant& plant, const Network& net,
+                                   const StudyOptions& options, std::vector<std::string>& warnings) {
   const int max_order = plant.study.max_order;
   OperatingPoint op;
   op.drives.resize(plant.drives.size());
@@ -83,12 +83,13 @@ OperatingPoint SolveOperatingPoint(const Plant& plant, const Network& net, int t
   const std::vector<Complex> fixed = FixedPowerDrawn(plant, net);
   // Kept across rounds: exact solutions and interpolation nodes stay valid as the supplies move.
   BridgeCache cache(max_order);
+  const auto exact = [&](std::size_t n) { return plant.drives[bridges[n]].name == options.exact_drive; };
+  std::vector<BusSupply> supplies(bridges.size());
   for (int round = 1;; ++round) {
     std::vector<Complex> drawn = fixed;
     for (std::size_t n = 0; n < bridges.size(); ++n) drawn[bridge_buses[n]] += bridge_power[n];
     op.flow = SolveLoadFlow(net, drawn);
     op.bridge_iterations = round;
-    std::vector<BusSupply> supplies(bridges.size());
     for (std::size_t n = 0; n < bridges.size(); ++n) {
       const Complex v1 = op.flow.voltage[bridge_buses[n]];
       const Complex i1 = bridge_power[n] == Complex{} ? Complex{} : std::conj(bridge_power[n] / v1);
@@ -97,9 +98,10 @@ OperatingPoint SolveOperatingPoint(const Plant& plant, const Network& net, int t
     cache.set_interpolate(DistinctCircuits(plant, bridges, supplies, cache) >
                           static_cast<std::size_t>(kMaxExactCircuits));
     std::vector<GroupSpectrum> spectra(bridges.size());
-    ParallelFor(static_cast<int>(bridges.size()), threads, [] { return std::make_unique<int>(0); },
-                [&](int&, int n) {
-                  spectra[n] = ComputeGroupSpectrum(plant.drives[bridges[n]], supplies[n], cache);
+    ParallelFor(static_cast<int>(bridges.size()), options.threads,
+                [] { return std::make_unique<int>(0); }, [&](int&, int n) {
+                  spectra[n] = ComputeGroupSpectrum(plant.drives[bridges[n]], supplies[n], cache,
+                                                    exact(n));
                 });
     double change = 0.0, scale = 0.0;
     for (std::size_t n = 0; n < bridges.size(); ++n) {
@@ -116,6 +118,13 @@ OperatingPoint SolveOperatingPoint(const Plant& plant, const Network& net, int t
     }
   }
 
+  if (options.keep_waveforms) {  // from the last round's solutions, still in the cache
+    ParallelFor(static_cast<int>(bridges.size()), options.threads,
+                [] { return std::make_unique<int>(0); }, [&](int&, int n) {
+                  op.drives[bridges[n]].bridge->waveform =
+                      GroupWaveform(plant.drives[bridges[n]], supplies[n], cache, exact(n));
+                });
+  }
   for (std::size_t k = 0; k < plant.drives.size(); ++k) {
     const Drive& d = plant.drives[k];
     if (NeedsBridgeModel(d.front_end)) continue;

@@ -11,6 +11,7 @@
 #include "bridge_model.h"
 #include "load_flow.h"
 #include "network.h"
+#include "overtone/study.h"
 
 namespace overtone::internal {
 
@@ -25,10 +26,20 @@ struct OperatingPoint {
   int bridge_iterations = 0;                // load flow / bridge model rounds
 };
 
-// Bridge groups are simulated on `threads` threads (0 = all cores); the result does not depend
-// on the thread count.
-OperatingPoint SolveOperatingPoint(const Plant& plant, const Network& network, int threads,
-                                   std::vector<std::string>& warnings);
+// Bridge groups are simulated on `options.threads` threads (0 = all cores); the result does not
+// depend on the thread count. Waveforms are kept when `options.keep_waveforms` asks, and the group
+// named `options.exact_drive` is simulated on its own wherever the others are interpolated.
+OperatingPoint SolveOperatingPoint(const Plant& plant, const Network& network,
+                                   const StudyOptions& options, std::vector<std::string>& warnings);
+
+// The same with every waveform kept, for callers that pass only a thread count.
+inline OperatingPoint SolveOperatingPoint(const Plant& plant, const Network& network, int threads,
+                                          std::vector<std::string>& warnings) {
+  StudyOptions options;
+  options.threads = threads;
+  options.keep_waveforms = true;
+  return SolveOperatingPoint(plant, network, options, warnings);
+}
 
 }  // namespace overtone::internal
 

@@ -223,3 +223,40 @@ TEST_CASE("Plants with few distinct circuits are solved exactly, larger ones int
     }
   }
 }
+
+TEST_CASE("A group named for an exact solve is simulated on its own in an interpolated plant",
+          "[bridge_table]") {
+  std::vector<std::string> warnings;
+  const Plant plant = SpreadPlant(kMaxExactCircuits + 8);
+  const Network net(plant);
+  constexpr std::size_t kGroup = 5;
+  StudyOptions options;
+  options.threads = 2;
+  const OperatingPoint shared = SolveOperatingPoint(plant, net, options, warnings);
+  REQUIRE(shared.drives[kGroup].bridge->interpolated);  // else the test shows nothing
+  CHECK(shared.drives[kGroup].bridge->waveform.theta.empty());  // not asked for
+
+  options.exact_drive = plant.drives[kGroup].name;
+  options.keep_waveforms = true;
+  const OperatingPoint op = SolveOperatingPoint(plant, net, options, warnings);
+  const GroupSpectrum& group = *op.drives[kGroup].bridge;
+  CHECK_FALSE(group.interpolated);
+  CHECK_FALSE(group.waveform.theta.empty());
+  CHECK(op.drives[kGroup + 1].bridge->interpolated);
+
+  // Reference: the group simulated directly (a cache that never interpolates) against the
+  // Thevenin equivalent of its bus at the converged operating point.
+  const int bus = net.BusIndex(plant.drives[kGroup].bus);
+  const Complex z_sc = ShortCircuitImpedances(net, {bus}, SourceSet::kAll)[0];
+  const Complex v1 = op.flow.voltage[bus];
+  const Complex i1 = op.drives[kGroup].current[1];
+  const BusSupply supply{net.nominal_v(bus), net.frequency_hz(), v1 + z_sc * i1, z_sc};
+  BridgeCache direct(plant.study.max_order);
+  const GroupSpectrum reference = ComputeGroupSpectrum(plant.drives[kGroup], supply, direct, false);
+  for (std::size_t h = 1; h < reference.current.size(); ++h) {
+    INFO("order " << h);
+    // Both are simulations of one circuit, converged to 1e-7 of its power (bridge.h).
+    CHECK(std::abs(op.drives[kGroup].current[h] - reference.current[h]) <
+          1e-5 * std::abs(reference.current[1]));
+  }
+}

@@ -29,6 +29,10 @@ struct StudyOptions {
   int threads = 0;  // worker threads for the per-order solves; 0 = all cores
   bool scan = true;  // resonance screening of the present step state (`--no-scan` clears it)
   bool keep_waveforms = false;  // keep one period of each bridge group's waveforms
+  // A drive group whose bridge front end is simulated on its own even where a plant's many
+  // distinct circuits have the other groups' spectra interpolated (docs/bridge-model.md
+  // section 10); empty for none. `overtone spectrum` names its group here.
+  std::string exact_drive;
   StudyTimings* timings = nullptr;  // when set, filled with the phases' wall-clock times
 };
 
