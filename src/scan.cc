@@ -13,6 +13,8 @@
 #include <cmath>
 #include <limits>
 #include <memory>
+#include <string_view>
+#include <unordered_set>
 
 #include <fmt/format.h>
 
@@ -100,8 +102,9 @@ Plant WithoutShunts(const Plant& plant, bool keep_filters) {
 
 std::vector<std::string> DriveBuses(const Plant& plant) {
   std::vector<std::string> buses;
+  std::unordered_set<std::string_view> seen;
   for (const Drive& d : plant.drives) {
-    if (std::find(buses.begin(), buses.end(), d.bus) == buses.end()) buses.push_back(d.bus);
+    if (seen.insert(d.bus).second) buses.push_back(d.bus);
   }
   return buses;
 }
@@ -424,13 +427,12 @@ void RateRisk(const std::vector<double>& injection_percent, double band, Resonan
 }
 
 std::vector<std::string> DefaultMonitoredBuses(const Plant& plant, const std::string& pcc) {
+  std::unordered_set<std::string_view> shunt_buses;  // one pass over the banks, not one per bus
+  for (const Capacitor& c : plant.capacitors) shunt_buses.insert(c.bus);
+  for (const Filter& f : plant.filters) shunt_buses.insert(f.bus);
   std::vector<std::string> buses;
   for (const Bus& b : plant.buses) {
-    const auto here = [&](const auto& element) { return element.bus == b.name; };
-    if (b.name == pcc || std::any_of(plant.capacitors.begin(), plant.capacitors.end(), here) ||
-        std::any_of(plant.filters.begin(), plant.filters.end(), here)) {
-      buses.push_back(b.name);
-    }
+    if (b.name == pcc || shunt_buses.contains(b.name)) buses.push_back(b.name);
   }
   return buses;
 }
