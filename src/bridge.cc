@@ -516,6 +516,8 @@ BridgeSolution ReachPower(const BridgeParameters& p, const BridgeStart* from) {
     x0 = from->level * p.power / from->power;
     for (int k = 0; k < 4; ++k) warm.z[k] = from->state[k];
     warm.topology = from->topology;
+    std::copy(from->jacobian.begin(), from->jacobian.end(), jacobian.matrix.data());
+    jacobian.valid = from->has_jacobian;
   }
   double p0 = Evaluate(p, x0, warm, jacobian, false).power;
   double x1 = x0 * p.power / std::max(p0, 1e-12);
@@ -525,6 +527,8 @@ BridgeSolution ReachPower(const BridgeParameters& p, const BridgeStart* from) {
     if (std::abs(p1 - p.power) <= 1e-9 + 1e-7 * p.power) {
       BridgeSolution s = Evaluate(p, x1, warm, jacobian, true);
       s.start = {x1, p1, {warm.z[0], warm.z[1], warm.z[2], warm.z[3]}, warm.topology};
+      std::copy(jacobian.matrix.data(), jacobian.matrix.data() + 16, s.start.jacobian.begin());
+      s.start.has_jacobian = jacobian.valid;
       return s;
     }
     const double slope = (p1 - p0) / (x1 - x0);

@@ -46,6 +46,9 @@ struct BridgeStart {
   double power = 0.0;  // the power drawn at that level
   std::array<double, 4> state = {};  // circuit states at the start of the symmetry segment
   int topology = 0;
+  // The shooting Jacobian there (of the segment map less the identity, column-major), if any.
+  std::array<double, 16> jacobian = {};
+  bool has_jacobian = false;
 };
 
 struct BridgeSolution {

@@ -68,13 +68,15 @@ class BridgeCache {
   const BridgeTable& table() const { return table_; }
 
  private:
-  const BridgeSolution& SolveExactly(const BridgeParameters& p);
+  const BridgeSolution& SolveExactly(const BridgeParameters& p, const BridgeStart* from);
 
   int max_order_;
   bool interpolate_ = false;
   BridgeTable table_;
   std::mutex mutex_;
-  std::map<Key, BridgeSolution> solutions_;  // nodes stay put: references remain valid
+  // By circuit and start: the start moves a solution within the solver's tolerances, so one
+  // circuit met from two starts (not expected) keeps both, whichever thread comes first.
+  std::map<std::pair<Key, const BridgeStart*>, BridgeSolution> solutions_;  // nodes stay put
 };
 
 // The circuits that stand for the group against `supply`, in bridge.h units (their exact keys

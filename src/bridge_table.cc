@@ -211,35 +211,56 @@ std::optional<BridgeTable::Blend> BridgeTable::BlendAt(const Kind& kind, const P
   return b;
 }
 
-std::optional<SolvedCircuit> BridgeTable::Interpolate(const BridgeParameters& p, double emf) {
+std::optional<BridgeTable::Located> BridgeTable::Locate(const BridgeParameters& p, double emf) {
   const double e2 = emf * emf;
   // The same circuit on a unit EMF (see the header). The line current sees the supply and the
   // group's own reactor in series, so they are lumped.
-  double power = p.power / e2, scale = e2;
+  Located at;
+  double power = p.power / e2;
+  at.scale = e2;
   double r = p.r_supply, x = p.x_supply + p.x_reactor;
-  Kind kind = {static_cast<double>(p.circuit), 0.0, 0.0, 0.0, 0.0};
+  at.kind = {static_cast<double>(p.circuit), 0.0, 0.0, 0.0, 0.0};
   switch (p.circuit) {
     case BridgeCircuit::kSixPulseCapacitor:
-      kind[3] = Rounded(p.x_dc);
-      kind[4] = Rounded(p.b_dc);
+      at.kind[3] = Rounded(p.x_dc);
+      at.kind[4] = Rounded(p.b_dc);
       break;
     case BridgeCircuit::kSinglePhase:
       // Its pulse is shaped by a deep capacitor ripple; not tested to the criterion: solved directly.
       return std::nullopt;
     case BridgeCircuit::kSixPulseStiff:
       // Without a capacitor the circuit is scale-free once more: the power is brought to 1.
-      kind[1] = p.thyristor ? 1.0 : 0.0;
-      kind[2] = Rounded(p.firing_deg);
+      at.kind[1] = p.thyristor ? 1.0 : 0.0;
+      at.kind[2] = Rounded(p.firing_deg);
       r *= power;
       x *= power;
-      scale *= power;
+      at.scale *= power;
       power = 1.0;
       break;
   }
   if (!(power > 0.0) || !(r > 0.0) || !(x > 0.0)) return std::nullopt;
-  if (std::hypot(r, x) * power < kStiffestSupply) return std::nullopt;
-  const Point at = {std::log(std::hypot(r, x) * power), std::log(x / r), std::log(power),
-                    p.circuit == BridgeCircuit::kSixPulseStiff};
+  at.point = {std::log(std::hypot(r, x) * power), std::log(x / r), std::log(power),
+              p.circuit == BridgeCircuit::kSixPulseStiff};
+  return at;
+}
+
+const BridgeStart* BridgeTable::StartNear(const BridgeParameters& p, double emf) {
+  const std::optional<Located> at = Locate(p, emf);
+  if (!at || at->point.u < std::log(kStiffestSupply)) return nullptr;
+  const Point& x = at->point;
+  const Node& node = Solved(at->kind, {0, static_cast<int>(std::lround(x.u / kStepU)),
+                                       static_cast<int>(std::lround(x.v / kStepV)),
+                                       x.scale_free ? 0 : static_cast<int>(std::lround(x.w / kStepW))});
+  return node.failed ? nullptr : &node.start;
+}
+
+std::optional<SolvedCircuit> BridgeTable::Interpolate(const BridgeParameters& p, double emf) {
+  const std::optional<Located> located = Locate(p, emf);
+  if (!located) return std::nullopt;
+  const Point& at = located->point;
+  const Kind& kind = located->kind;
+  const double scale = located->scale;
+  if (at.u < std::log(kStiffestSupply)) return std::nullopt;
   std::optional<Blend> blend;
   for (int level = 0; level <= kFinestLevel && !blend; ++level) blend = BlendAt(kind, at, level);
   if (!blend) return std::nullopt;

@@ -71,6 +71,11 @@ class BridgeTable {
   // Lattice level l is 2^l times finer in each direction.
   static constexpr int kFinestLevel = 2;
 
+  // The solved state of the coarse node nearest to the point, to start a direct solve of `p` on
+  // EMF `emf` from (BridgeStart); null where the table does not serve the point or that node
+  // failed. The node is solved if it was not yet: the choice depends only on `p` and `emf`.
+  const BridgeStart* StartNear(const BridgeParameters& p, double emf);
+
   int solved_nodes() const;
 
  private:
@@ -93,6 +98,13 @@ class BridgeTable {
     double u, v, w;
     bool scale_free;
   };
+  // Where a circuit sits in the table: its kind, its point, and the factor from the table's
+  // unit-EMF (and, scale-free, unit-power) currents to the circuit's.
+  struct Located {
+    Kind kind;
+    Point point;
+    double scale = 1.0;
+  };
   // The stencil's blend of the node solutions around a point, on a unit EMF and power.
   struct Blend {
     std::complex<double> fundamental;
@@ -101,6 +113,9 @@ class BridgeTable {
     const Node* nearest = nullptr;
   };
 
+  // Nothing for a circuit the table never serves (no power drawn, no supply resistance, single
+  // phase).
+  static std::optional<Located> Locate(const BridgeParameters& p, double emf);
   // The node at `index`, solved on first use.
   const Node& Solved(const Kind& kind, Index index);
   // Nothing where a node fails or the stencil is not trusted.
