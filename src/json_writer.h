@@ -1,7 +1,7 @@
 // src/json_writer.h — a small streaming JSON writer (internal): no in-memory tree, so large
 // studies write in one pass. Numbers use the shortest form that reads back exactly; a NaN or
 // infinity is a broken invariant upstream and is written as null. Text is gathered in a buffer
-// (formatting with fmt straight into it, no string per number) and goes to the stream every
+// (formatting with fmt straight into it, format strings compiled, no string per number) and goes to the stream every
 // 64 KiB and whenever the outermost value is complete, so the caller may write to the stream
 // after a document ends.
 #ifndef OVERTONE_INTERNAL_JSON_WRITER_H_
@@ -15,6 +15,7 @@
 
 #include <iterator>
 
+#include <fmt/compile.h>
 #include <fmt/format.h>
 
 namespace overtone::internal {
@@ -39,10 +40,15 @@ class JsonWriter {
   }
   JsonWriter& Value(double v) {
     Prefix();
-    if (std::isfinite(v)) fmt::format_to(std::back_inserter(buf_), "{}", v); else Append("null");
+    if (std::isfinite(v)) fmt::format_to(std::back_inserter(buf_), FMT_COMPILE("{}"), v);
+    else Append("null");
     return Done();
   }
-  JsonWriter& Value(int v) { Prefix(); fmt::format_to(std::back_inserter(buf_), "{}", v); return Done(); }
+  JsonWriter& Value(int v) {
+    Prefix();
+    fmt::format_to(std::back_inserter(buf_), FMT_COMPILE("{}"), v);
+    return Done();
+  }
   JsonWriter& Value(bool v) { Prefix(); Append(v ? "true" : "false"); return Done(); }
   JsonWriter& Value(std::string_view v) { Prefix(); WriteString(v); return Done(); }
   JsonWriter& Value(const char* v) { return Value(std::string_view(v)); }

@@ -12,8 +12,8 @@ namespace {
 
 using internal::JsonWriter;
 using internal::AngleDeg;
-double PercentOf(Phasor x, double fundamental, double negligible) {
-  return fundamental > negligible ? 100.0 * std::abs(x) / fundamental : 0.0;
+double PercentOf(double magnitude, double fundamental, double negligible) {
+  return fundamental > negligible ? 100.0 * magnitude / fundamental : 0.0;
 }
 
 // Orders 2..max_order; `amps` adds the magnitude in amperes (currents); `angles` is false for
@@ -24,9 +24,10 @@ void WriteHarmonics(JsonWriter& j, const Spectrum& s, bool amps, bool angles = t
   j.Key("harmonics").BeginArray();
   for (std::size_t h = 2; h < s.by_order.size(); ++h) {
     const Phasor x = s.by_order[h];
+    const double magnitude = std::abs(x);
     j.BeginObject().Field("order", static_cast<int>(h));
-    if (amps) j.Field("amps", std::abs(x));
-    j.Field("percent", PercentOf(x, fundamental, negligible));
+    if (amps) j.Field("amps", magnitude);
+    j.Field("percent", PercentOf(magnitude, fundamental, negligible));
     if (angles) j.Field("angle_deg", AngleDeg(x));
     j.EndObject();
   }
