@@ -12,6 +12,7 @@
 
 #include "assessment.h"
 #include "output_common.h"
+#include "output_mitigation.h"
 #include "overtone/report.h"
 
 namespace overtone {
@@ -413,10 +414,17 @@ std::optional<Section> Method(const ReportInputs& in) {
 }
 
 // The report's sections, in order. A new section is one function above and one entry here.
+// The ranked mitigation options, with `--mitigate` (src/output_mitigation.cc, docs/mitigate.md).
+std::optional<Section> MitigationOptions(const ReportInputs& in) {
+  if (!in.mitigation) return std::nullopt;
+  return internal::MitigationSection(*in.mitigation);
+}
+
 constexpr SectionWriter kSections[] = {Summary,        Inputs,      BusDistortion,
                                        PccCurrent,     Violations,  ComparisonWithBase,
                                        SummationRules, DriveGroups, CapacitorsAndTransformers,
-                                       Resonances,     Method};
+                                       Resonances,     MitigationOptions,
+                                       Method};
 
 std::string Markdown(const std::string& title, const std::vector<Section>& sections) {
   const auto cell = [](const std::string& x) {

@@ -80,4 +80,17 @@ run within 0 "$BIN" mitigate "$DEMO" -o "$WORK/none"
 grep -q "nothing to mitigate" "$WORK/within.out" || fail "within: $(head -n 3 "$WORK/within.out")"
 [ -e "$WORK/none" ] && fail "within: wrote a folder"
 
+# 6. `overtone report --mitigate`: the section, after Resonances, and the option files beside it;
+# without the flag, no section and no folder.
+run report 0 "$BIN" report "$MILL" -o "$WORK/rep" --mitigate
+grep -q "^## Mitigation options" "$WORK/rep/report.md" || fail "report: no mitigation section"
+grep -q "Mitigation options</h2>" "$WORK/rep/report.html" || fail "report.html: no mitigation section"
+[ "$(grep -n '^## ' "$WORK/rep/report.md" | grep -A1 'Resonances' | tail -n 1 | cut -d' ' -f2-)" = \
+  "Mitigation options" ] || fail "report: mitigation section not after Resonances"
+ls "$WORK/rep/mitigation/"*.yaml >/dev/null 2>&1 || fail "report: no option files"
+run reportcheck 0 "$BIN" check "$(ls "$WORK/rep/mitigation/"*.yaml | head -n 1)"
+run plain 0 "$BIN" report "$MILL" -o "$WORK/plain"
+grep -q "Mitigation options" "$WORK/plain/report.md" && fail "report without --mitigate has the section"
+[ -e "$WORK/plain/mitigation" ] && fail "report without --mitigate wrote option files"
+
 exit $((failures > 0))

@@ -9,6 +9,7 @@
 #include <vector>
 
 #include "overtone/compare.h"
+#include "overtone/mitigate.h"
 #include "overtone/scan.h"
 #include "overtone/study.h"
 
@@ -41,6 +42,7 @@ struct ReportInputs {
   std::vector<StudyResult> other_summations;  // the same plant under the two other rules
   std::vector<ScanResult> scans;              // the plant's frequency scan (one variant)
   std::optional<Comparison> comparison;       // against a base case (`--against BASE`)
+  std::optional<MitigationResult> mitigation;  // ranked options (`--mitigate`, docs/mitigate.md)
 };
 
 // Runs the study of `plant`, the same study under the two other summation rules, its frequency
