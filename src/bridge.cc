@@ -293,7 +293,8 @@ struct ShootingJacobian {
 // circuits.
 template <typename RotateFn>
 PeriodicState FindPeriodicState(Simulator& sim, PeriodicState x, int steps_per_segment,
-                                double theta0, RotateFn rotate, ShootingJacobian& jacobian) {
+                                double theta0, RotateFn rotate, ShootingJacobian& jacobian,
+                                double tolerance) {
   const auto segment = [&](PeriodicState s) {
     sim.Settle(s.z, s.topology);
     sim.Run(s.z, s.topology, steps_per_segment);
@@ -310,7 +311,7 @@ PeriodicState FindPeriodicState(Simulator& sim, PeriodicState x, int steps_per_s
   for (int n = 0; n < 200; ++n) {
     const double scale = std::max(1.0, y.z.head<kCircuitStates>().lpNorm<Eigen::Infinity>());
     const double size = r.lpNorm<Eigen::Infinity>();
-    if (size < 1e-11 * scale) return y;
+    if (size < tolerance * scale) return y;
     const bool fresh = !jacobian.valid;
     if (fresh && n < 2) {
       x = y;
@@ -474,12 +475,15 @@ BridgeSolution SegmentPower(const BridgeParameters& p, Simulator& sim, PeriodicS
 // `sampled`, the full period's samples and figures; otherwise the power alone.
 BridgeSolution Evaluate(const BridgeParameters& p, double parameter, PeriodicState& warm,
                         ShootingJacobian& jacobian, bool sampled) {
+  // The power alone, for a secant step, needs the state to less than its 1e-7 tolerance; the
+  // sampled period, to round-off.
+  const double tolerance = sampled ? 1e-11 : 1e-9;
   const double dt = 2.0 * kPi / kSamplesPerCycle;
   if (p.circuit == BridgeCircuit::kSinglePhase) {
     SinglePhaseCircuit circuit(p, parameter);
     Simulator sim(circuit, dt);
     warm = FindPeriodicState(sim, warm, kSamplesPerCycle / 2, 0.0, SinglePhaseCircuit::Rotate,
-                             jacobian);
+                             jacobian, tolerance);
     return sampled ? SampleCycle(p, sim, warm, 0.0) : SegmentPower(p, sim, warm, kSamplesPerCycle / 2);
   }
   SixPulseCircuit circuit(p, parameter);
@@ -497,7 +501,7 @@ BridgeSolution Evaluate(const BridgeParameters& p, double parameter, PeriodicSta
   }
   SetTheta(warm.z, theta0);
   warm = FindPeriodicState(sim, warm, kSamplesPerCycle / 6, theta0, SixPulseCircuit::Rotate,
-                           jacobian);
+                           jacobian, tolerance);
   return sampled ? SampleCycle(p, sim, warm, theta0) : SegmentPower(p, sim, warm, kSamplesPerCycle / 6);
 }
 
@@ -511,16 +515,19 @@ BridgeSolution ReachPower(const BridgeParameters& p, const BridgeStart* from) {
   if (p.power <= 0.0) return Evaluate(p, stiff ? 0.0 : 1e-9, warm, jacobian, true);
   double x0 = stiff ? p.power / (1.35 * std::cos(p.firing_deg * kPi / 180.0))
                     : p.power / (1.35 * 1.35);
+  // The power grows about as the level to the power `elasticity` (1 at first: P ~ G V_dc^2 or
+  // P ~ V_dc I_d), which a neighbouring solution tells more exactly.
+  double elasticity = 1.0;
   if (from != nullptr && from->power > 0.0 && from->level > 0.0) {
-    // Both levels are about proportional to the power.
-    x0 = from->level * p.power / from->power;
+    elasticity = from->elasticity;
+    x0 = from->level * std::pow(p.power / from->power, 1.0 / elasticity);
     for (int k = 0; k < 4; ++k) warm.z[k] = from->state[k];
     warm.topology = from->topology;
     std::copy(from->jacobian.begin(), from->jacobian.end(), jacobian.matrix.data());
     jacobian.valid = from->has_jacobian;
   }
   double p0 = Evaluate(p, x0, warm, jacobian, false).power;
-  double x1 = x0 * p.power / std::max(p0, 1e-12);
+  double x1 = x0 * std::pow(p.power / std::max(p0, 1e-12), 1.0 / elasticity);
   for (int it = 0; it < 40; ++it) {
     const double p1 = Evaluate(p, x1, warm, jacobian, false).power;
     // The period is sampled once, at the level found (its steady state is already in `warm`).
@@ -529,6 +536,8 @@ BridgeSolution ReachPower(const BridgeParameters& p, const BridgeStart* from) {
       s.start = {x1, p1, {warm.z[0], warm.z[1], warm.z[2], warm.z[3]}, warm.topology};
       std::copy(jacobian.matrix.data(), jacobian.matrix.data() + 16, s.start.jacobian.begin());
       s.start.has_jacobian = jacobian.valid;
+      const double found = std::log(p1 / p0) / std::log(x1 / x0);
+      if (std::isfinite(found) && found > 0.1 && found < 10.0) s.start.elasticity = found;
       return s;
     }
     const double slope = (p1 - p0) / (x1 - x0);

@@ -49,6 +49,7 @@ struct BridgeStart {
   // The shooting Jacobian there (of the segment map less the identity, column-major), if any.
   std::array<double, 16> jacobian = {};
   bool has_jacobian = false;
+  double elasticity = 1.0;  // d ln(power) / d ln(level) there, from the last secant step
 };
 
 struct BridgeSolution {
