@@ -375,19 +375,25 @@ std::vector<Complex> FourierSeries(const std::vector<double>& theta, const std::
     beta[n + 1] += slope;
     beta[n] -= slope;
   }
+  // Every circuit here repeats with the opposite sign after half a period (the symmetry its
+  // periodic state is found with, section 4 of docs/bridge-model.md), so the even orders vanish
+  // and only the odd ones are summed. exp(-j h theta_n) comes by repeated products with
+  // exp(-2j theta_n), real and imaginary parts apart so that the loop vectorises (a std::complex
+  // product checks for infinities and does not).
   std::vector<Complex> out(static_cast<std::size_t>(max_order) + 1);
-  // exp(-j h theta_n) by repeated products, real and imaginary parts apart so that the loop
-  // vectorises (a std::complex product checks for infinities and does not).
-  std::vector<double> base_re(points), base_im(points), re(points, 1.0), im(points, 0.0);
+  std::vector<double> step_re(points), step_im(points), re(points), im(points);
   for (std::size_t n = 0; n < points; ++n) {
-    base_re[n] = std::cos(theta[n]);
-    base_im[n] = -std::sin(theta[n]);
+    step_re[n] = std::cos(2.0 * theta[n]);
+    step_im[n] = -std::sin(2.0 * theta[n]);
+    // exp(+j theta_n), one step before order 1
+    re[n] = std::cos(theta[n]);
+    im[n] = std::sin(theta[n]);
   }
-  for (int h = 1; h <= max_order; ++h) {
+  for (int h = 1; h <= max_order; h += 2) {
     double a_re = 0.0, a_im = 0.0, b_re = 0.0, b_im = 0.0;
     for (std::size_t n = 0; n < points; ++n) {
-      const double next_re = re[n] * base_re[n] - im[n] * base_im[n];
-      im[n] = re[n] * base_im[n] + im[n] * base_re[n];
+      const double next_re = re[n] * step_re[n] - im[n] * step_im[n];
+      im[n] = re[n] * step_im[n] + im[n] * step_re[n];
       re[n] = next_re;
       a_re += alpha[n] * re[n];
       a_im += alpha[n] * im[n];

@@ -65,12 +65,18 @@ double LocateSwitch(const StateMatrix& a, double norm, const StateVector& z0,
 Simulator::Simulator(const SwitchedCircuit& circuit, double step) : circuit_(circuit), step_(step) {}
 
 const Simulator::Cached& Simulator::Get(int topology) {
+  // Most steps stay in the topology of the step before.
+  if (last_ != nullptr && last_id_ == topology) return *last_;
   auto it = cache_.find(topology);
-  if (it != cache_.end()) return it->second;
-  Cached c{circuit_.Build(topology), StateMatrix(), 0.0};
-  c.step = Propagator(c.topology.a, step_);
-  c.norm = NormOf(c.topology.a);
-  return cache_.emplace(topology, std::move(c)).first->second;
+  if (it == cache_.end()) {
+    Cached c{circuit_.Build(topology), StateMatrix(), 0.0};
+    c.step = Propagator(c.topology.a, step_);
+    c.norm = NormOf(c.topology.a);
+    it = cache_.emplace(topology, std::move(c)).first;
+  }
+  last_id_ = topology;
+  last_ = &it->second;  // elements of an unordered_map stay put
+  return *last_;
 }
 
 void Simulator::Settle(StateVector& z, int& topology) {

@@ -81,6 +81,8 @@ class Simulator {
   const SwitchedCircuit& circuit_;
   double step_;
   std::unordered_map<int, Cached> cache_;
+  int last_id_ = 0;
+  const Cached* last_ = nullptr;  // the entry of topology last_id_
 };
 
 }  // namespace overtone::internal
