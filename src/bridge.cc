@@ -534,6 +534,7 @@ BridgeSolution ReachPower(const BridgeParameters& p, const BridgeStart* from) {
   }
   double p0 = Evaluate(p, x0, warm, jacobian, false).power;
   double x1 = x0 * std::pow(p.power / std::max(p0, 1e-12), 1.0 / elasticity);
+  PeriodicState at_x0 = warm;
   for (int it = 0; it < 40; ++it) {
     const double p1 = Evaluate(p, x1, warm, jacobian, false).power;
     // The period is sampled once, at the level found (its steady state is already in `warm`).
@@ -549,6 +550,14 @@ BridgeSolution ReachPower(const BridgeParameters& p, const BridgeStart* from) {
     const double slope = (p1 - p0) / (x1 - x0);
     double x2 = slope > 0.0 ? x1 + (p.power - p1) / slope : 2.0 * x1;
     x2 = std::clamp(x2, 0.25 * x1, 4.0 * x1);
+    // The periodic state moves about linearly with the level: the next one starts extrapolated
+    // from the last two (in one topology), a step or two nearer than the last.
+    const PeriodicState at_x1 = warm;
+    if (at_x0.topology == warm.topology) {
+      warm.z.head<kCircuitStates>() += (x2 - x1) / (x1 - x0) *
+                                      (at_x1.z - at_x0.z).head<kCircuitStates>();
+    }
+    at_x0 = at_x1;
     x0 = x1;
     p0 = p1;
     x1 = x2;
