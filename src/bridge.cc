@@ -408,54 +408,94 @@ std::vector<Complex> FourierSeries(const std::vector<double>& theta, const std::
   return out;
 }
 
-// One period from a periodic state: spectrum, power, DC voltage and waveform.
+// One period from a periodic state: spectrum, power, DC voltage and waveform. Only one symmetry
+// segment is simulated: the six-pulse bridge's phase a over the segments of 60 deg is a, -b, c,
+// -a, b, -c of the first (the relabelling of SixPulseCircuit::Rotate), the single-phase bridge's
+// line current over two half periods i, -i; the DC voltage repeats.
 BridgeSolution SampleCycle(const BridgeParameters& p, Simulator& sim, PeriodicState x,
                            double theta0) {
   const bool single_phase = p.circuit == BridgeCircuit::kSinglePhase;
+  const int phases = single_phase ? 1 : 3;
+  const int segments = single_phase ? 2 : 6;
+  const int steps = kSamplesPerCycle / segments;
   const double dt = 2.0 * kPi / kSamplesPerCycle;
-  const SwitchingRow emf = single_phase ? SinglePhaseCircuit::Emf() : Sinusoid(kPhasePeak, 0.0);
-  const auto line_current = [&](const StateVector& z, int id) {
-    return (single_phase ? SinglePhaseCircuit::Sign(id) : 1.0) * z[0];
+  // Line current and terminal voltage of each phase (single-phase: the line pair) at a state.
+  const auto current = [&](const StateVector& z, int id, int m) {
+    return single_phase ? SinglePhaseCircuit::Sign(id) * z[0] : z[m];
   };
+  const auto emf = [&](int m) {
+    return single_phase ? SinglePhaseCircuit::Emf() : SixPulseCircuit::Emf(m);
+  };
+  // One segment's points: offset from theta0, phase currents, and for grid points (not switching
+  // instants) the phase terminal voltages and the DC voltage.
+  struct Point {
+    double offset;
+    std::array<double, 3> i, v;
+    double v_dc;
+    bool grid;
+  };
+  std::vector<Point> seg;
+  seg.reserve(static_cast<std::size_t>(steps) * 5 / 4);
+  const auto state_point = [&](double offset, const StateVector& z, int id) {
+    Point q{offset, {}, {}, 0.0, false};
+    for (int m = 0; m < phases; ++m) q.i[m] = current(z, id, m);
+    return q;
+  };
+  seg.push_back(state_point(0.0, x.z, x.topology));
   BridgeSolution s;
-  BridgeWaveform& w = s.waveform;
-  std::vector<double> points{theta0}, values{line_current(x.z, x.topology)};
   double power = 0.0, dc = 0.0;
   int conducting = 0, overlapping = 0;
-  double theta = theta0;
+  double theta = 0.0;
   const auto on_switch = [&](double offset, const StateVector& z, int id) {
-    points.push_back(theta + offset);
-    values.push_back(line_current(z, id));
+    seg.push_back(state_point(theta + offset, z, id));
   };
   const auto on_sample = [&](const StateVector& z, int id) {
     theta += dt;
     const Topology& t = sim.TopologyOf(id);
-    const double i = line_current(z, id);
-    const double di = line_current(t.a * z, id);
-    const double e = emf.dot(z);
-    const double v_dc = p.circuit == BridgeCircuit::kSixPulseStiff ? t.output.dot(z) : z[kVdc];
-    points.push_back(theta);
-    values.push_back(i);
-    w.theta.push_back(theta);
-    w.line_current.push_back(i);
-    w.terminal_voltage.push_back(e - p.r_supply * i - p.x_supply * di);
-    w.dc_voltage.push_back(v_dc);
-    power += e * i - p.r_supply * i * i;
-    dc += v_dc;
-    conducting += std::abs(i) > 1e-9;
+    const StateVector dz = t.a * z;
+    Point q = state_point(theta, z, id);
+    q.grid = true;
+    q.v_dc = p.circuit == BridgeCircuit::kSixPulseStiff ? t.output.dot(z) : z[kVdc];
+    for (int m = 0; m < phases; ++m) {
+      const double e = emf(m).dot(z);
+      q.v[m] = e - p.r_supply * q.i[m] - p.x_supply * current(dz, id, m);
+      power += e * q.i[m] - p.r_supply * q.i[m] * q.i[m];
+      conducting += std::abs(q.i[m]) > 1e-9;
+      s.peak_current = std::max(s.peak_current, std::abs(q.i[m]));
+    }
+    dc += q.v_dc;
     if (!single_phase) {
       const Connection c = Decode(id);
       overlapping += c[0] != 0 && c[1] != 0 && c[2] != 0;
     }
-    s.peak_current = std::max(s.peak_current, std::abs(i));
+    seg.push_back(q);
   };
-  sim.Run(x.z, x.topology, kSamplesPerCycle, on_sample, on_switch);
-  s.samples_theta = std::move(points);
-  s.samples_current = std::move(values);
-  s.power = (single_phase ? 1.0 : 3.0) * power / kSamplesPerCycle;
-  s.dc_voltage = dc / kSamplesPerCycle;
-  s.conduction_deg = 180.0 * conducting / kSamplesPerCycle;
-  s.overlap_deg = 360.0 * overlapping / kSamplesPerCycle / 6.0;
+  sim.Run(x.z, x.topology, steps, on_sample, on_switch);
+
+  BridgeWaveform& w = s.waveform;
+  s.samples_theta = {theta0};
+  s.samples_current = {seg.front().i[0]};
+  for (int k = 0; k < segments; ++k) {
+    const int m = k % phases;
+    const double sign = k % 2 == 0 ? 1.0 : -1.0;
+    const double start = theta0 + k * (2.0 * kPi / segments);
+    for (std::size_t n = 1; n < seg.size(); ++n) {
+      const Point& q = seg[n];
+      s.samples_theta.push_back(start + q.offset);
+      s.samples_current.push_back(sign * q.i[m]);
+      if (!q.grid) continue;
+      w.theta.push_back(start + q.offset);
+      w.line_current.push_back(sign * q.i[m]);
+      w.terminal_voltage.push_back(sign * q.v[m]);
+      w.dc_voltage.push_back(q.v_dc);
+    }
+  }
+  // Sums over the segment's phases stand for the period's phase a: each phase serves
+  // segments / phases segments.
+  s.power = power / steps;
+  s.dc_voltage = dc / steps;
+  s.conduction_deg = 180.0 * conducting * (segments / phases) / kSamplesPerCycle;
+  s.overlap_deg = 360.0 * overlapping * segments / kSamplesPerCycle / 6.0;
   return s;
 }
 
