@@ -248,9 +248,9 @@ const BridgeStart* BridgeTable::StartNear(const BridgeParameters& p, double emf)
   const std::optional<Located> at = Locate(p, emf);
   if (!at || at->point.u < std::log(kStiffestSupply)) return nullptr;
   const Point& x = at->point;
+  const int w = x.scale_free ? 0 : static_cast<int>(std::lround(x.w / kStepW));
   const Node& node = Solved(at->kind, {0, static_cast<int>(std::lround(x.u / kStepU)),
-                                       static_cast<int>(std::lround(x.v / kStepV)),
-                                       x.scale_free ? 0 : static_cast<int>(std::lround(x.w / kStepW))});
+                                       static_cast<int>(std::lround(x.v / kStepV)), w});
   return node.failed ? nullptr : &node.start;
 }
 

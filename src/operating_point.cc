@@ -83,7 +83,9 @@ OperatingPoint SolveOperatingPoint(const Plant& plant, const Network& net,
   const std::vector<Complex> fixed = FixedPowerDrawn(plant, net);
   // Kept across rounds: exact solutions and interpolation nodes stay valid as the supplies move.
   BridgeCache cache(max_order);
-  const auto exact = [&](std::size_t n) { return plant.drives[bridges[n]].name == options.exact_drive; };
+  const auto exact = [&](std::size_t n) {
+    return plant.drives[bridges[n]].name == options.exact_drive;
+  };
   std::vector<BusSupply> supplies(bridges.size());
   for (int round = 1;; ++round) {
     std::vector<Complex> drawn = fixed;
