@@ -192,8 +192,13 @@ int Scan(const std::string& plant_path) {
 int main(int argc, char** argv) {
   const std::string mode = argc > 1 ? argv[1] : "";
   if (mode == "bridges" && argc == 2) return Bridges();
-  if (mode == "study" && argc == 4) return Study(argv[2], argv[3]);
-  if (mode == "scan" && argc == 3) return Scan(argv[2]);
+  try {
+    if (mode == "study" && argc == 4) return Study(argv[2], argv[3]);
+    if (mode == "scan" && argc == 3) return Scan(argv[2]);
+  } catch (const std::exception& e) {  // a row that says so, and the table goes on
+    std::printf("| %s | failed: %s |\n", argv[2], e.what());
+    return 1;
+  }
   std::fprintf(stderr, "usage: overtone_bench bridges | study PLANT.yaml OUT.json | scan PLANT.yaml\n");
   return 2;
 }
