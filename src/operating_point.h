@@ -32,15 +32,6 @@ struct OperatingPoint {
 OperatingPoint SolveOperatingPoint(const Plant& plant, const Network& network,
                                    const StudyOptions& options, std::vector<std::string>& warnings);
 
-// The same with every waveform kept, for callers that pass only a thread count.
-inline OperatingPoint SolveOperatingPoint(const Plant& plant, const Network& network, int threads,
-                                          std::vector<std::string>& warnings) {
-  StudyOptions options;
-  options.threads = threads;
-  options.keep_waveforms = true;
-  return SolveOperatingPoint(plant, network, options, warnings);
-}
-
 }  // namespace overtone::internal
 
 #endif  // OVERTONE_INTERNAL_OPERATING_POINT_H_

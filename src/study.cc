@@ -272,7 +272,8 @@ StudyResult RunStudy(const Plant& plant, const StudyOptions& options) {
   result.cautions = StandardCautions();
 
   // Fundamental operating point, with each drive group's spectrum.
-  const internal::OperatingPoint op = internal::SolveOperatingPoint(plant, net, options.threads, result.warnings);
+  const internal::OperatingPoint op =
+      internal::SolveOperatingPoint(plant, net, options, result.warnings);
   const internal::LoadFlowResult& flow = op.flow;
   result.load_flow_iterations = flow.iterations;
   clock.Lap(&StudyTimings::operating_point_s);

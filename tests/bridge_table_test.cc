@@ -206,11 +206,13 @@ int Interpolated(const OperatingPoint& op) {
 TEST_CASE("Plants with few distinct circuits are solved exactly, larger ones interpolated",
           "[bridge_table]") {
   std::vector<std::string> warnings;
+  StudyOptions options;
+  options.threads = 2;
   const Plant few = SpreadPlant(kMaxExactCircuits);
-  const OperatingPoint exact = SolveOperatingPoint(few, Network(few), 2, warnings);
+  const OperatingPoint exact = SolveOperatingPoint(few, Network(few), options, warnings);
   CHECK(Interpolated(exact) == 0);
   const Plant many = SpreadPlant(kMaxExactCircuits + 8);
-  const OperatingPoint op = SolveOperatingPoint(many, Network(many), 2, warnings);
+  const OperatingPoint op = SolveOperatingPoint(many, Network(many), options, warnings);
   CHECK(Interpolated(op) > 0);
   // The shared groups agree with the exactly solved plant within the 0.2-point criterion
   // (DESIGN.md section 4): the first groups are the same circuits on slightly different buses.

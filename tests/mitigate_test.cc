@@ -3,6 +3,8 @@
 #include "overtone/mitigate.h"
 
 #include <catch2/catch.hpp>
+
+#include <unistd.h>
 #include <cmath>
 #include <complex>
 #include <filesystem>
@@ -29,7 +31,8 @@ struct Evaluated {
 const Evaluated& Mill() {
   static const Evaluated evaluated = [] {
     Evaluated e;
-    e.dir = fs::temp_directory_path() / "overtone-mitigate-test";
+    // Per process: ctest runs the test cases as separate processes, possibly at once.
+    e.dir = fs::temp_directory_path() / ("overtone-mitigate-test-" + std::to_string(::getpid()));
     fs::remove_all(e.dir);
     MitigateOptions options;
     options.out_dir = e.dir.string();
@@ -154,7 +157,9 @@ TEST_CASE("Detuning the bank removes the resonance near the 5th, as the scan sho
 TEST_CASE("A plant within its limits needs no mitigation", "[mitigate]") {
   // The demo plant meets IEEE 519 at its pcc and the design guide at every bus (docs/limits.md).
   MitigateOptions options;
-  options.out_dir = (fs::temp_directory_path() / "overtone-mitigate-none").string();
+  options.out_dir = (fs::temp_directory_path() /
+                      ("overtone-mitigate-none-" + std::to_string(::getpid())))
+                         .string();
   fs::remove_all(options.out_dir);
   const MitigationResult r = EvaluateMitigations(
       LoadPlant(std::string(OVERTONE_SOURCE_DIR) + "/cases/demo/plant.yaml"), options);

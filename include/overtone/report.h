@@ -32,6 +32,11 @@ void WriteStudyJson(const StudyResult& result, std::ostream& out);
 // One `drives` entry of the study JSON alone (`overtone spectrum --json`).
 void WriteDriveJson(const DriveResult& drive, std::ostream& out);
 
+// One period of a bridge group's waveform (`overtone spectrum --waveform`): a CSV of theta, line
+// current, terminal voltage and DC voltage, and (`--svg`) a chart of the current over the voltage.
+void WriteDriveWaveformCsv(const DriveWaveform& waveform, std::ostream& out);
+void WriteDriveWaveformSvg(const Drive& drive, const DriveResult& group, std::ostream& out);
+
 // buses.csv, bus_harmonics.csv, drives.csv and branches.csv in `dir` (created if needed).
 void WriteStudyCsv(const StudyResult& result, const std::string& dir);
 

@@ -32,7 +32,7 @@ struct StudyOptions {
   // A drive group whose bridge front end is simulated on its own even where a plant's many
   // distinct circuits have the other groups' spectra interpolated (docs/bridge-model.md
   // section 10); empty for none. `overtone spectrum` names its group here.
-  std::string exact_drive;
+  std::string exact_drive = {};
   StudyTimings* timings = nullptr;  // when set, filled with the phases' wall-clock times
 };
 
