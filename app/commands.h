@@ -2,9 +2,9 @@
 #ifndef OVERTONE_APP_COMMANDS_H_
 #define OVERTONE_APP_COMMANDS_H_
 
-#include <functional>
-
 #include <CLI/CLI.hpp>
+#include <functional>
+#include <string>
 
 namespace overtone::app {
 
@@ -20,6 +20,21 @@ struct Command {
   CLI::App* cli = nullptr;
   std::function<int()> run;
 };
+
+// `--json FILE` ('-' for standard output) writing `what` ("the results").
+inline CLI::Option* AddJsonOption(CLI::App* cmd, std::string* path, const std::string& what) {
+  return cmd
+      ->add_option("--json", *path, "write " + what + " as JSON to FILE ('-' for standard output)")
+      ->type_name("FILE");
+}
+
+// `--threads N`, 0 for all cores; `what` says what the threads do.
+inline CLI::Option* AddThreadsOption(
+    CLI::App* cmd, int* threads,
+    const std::string& what = "worker threads for the harmonic orders") {
+  return cmd->add_option("--threads", *threads, what + " (0 = all cores)")
+      ->check(CLI::Range(0, 1024));
+}
 
 Command AddCheckCommand(CLI::App& app);
 Command AddStudyCommand(CLI::App& app);

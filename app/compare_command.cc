@@ -24,12 +24,8 @@ Command AddCompareCommand(CLI::App& app) {
   cmd->add_option("PROPOSED", args->proposed,
                   "plant file of the proposed case (often `extends: BASE`)")
       ->required();
-  cmd->add_option("--json", args->json,
-                  "write the comparison as JSON to FILE ('-' for standard output)")
-      ->type_name("FILE");
-  cmd->add_option("--threads", args->threads,
-                  "worker threads for the harmonic orders (0 = all cores)")
-      ->check(CLI::Range(0, 1024));
+  AddJsonOption(cmd, &args->json, "the comparison");
+  AddThreadsOption(cmd, &args->threads);
   cmd->add_flag("--no-color", args->no_color,
                 "no colour in the terminal tables (also when NO_COLOR is set)");
   return {cmd, [args]() {

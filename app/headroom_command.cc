@@ -32,26 +32,22 @@ Command AddHeadroomCommand(CLI::App& app) {
                 "every bus at the drive group's nominal voltage");
   cmd->add_option("--max-units", args->options.max_units, "search cap on the units added")
       ->capture_default_str();
-  cmd->add_option("--threads", args->options.threads,
-                  "worker threads of each study (0 = all cores)")
-      ->check(CLI::Range(0, 1024));
-  cmd->add_option("--json", args->json,
-                  "write the results as JSON to FILE ('-' for standard output)")
-      ->type_name("FILE");
+  AddThreadsOption(cmd, &args->options.threads, "worker threads of each study");
+  AddJsonOption(cmd, &args->json, "the results");
   return {cmd, [args]() {
-    CheckOutputFile("--json", args->json);
-    const Plant plant = LoadPlant(args->plant);
-    const HeadroomResult result = RunHeadroom(plant, args->options);
-    // Everything is computed before the first byte is written.
-    if (args->json == "-") {
-      WriteHeadroomJson(result, std::cout);
-    } else if (!args->json.empty()) {
-      WriteFileAtomically(args->json,
-                          [&](std::ostream& out) { WriteHeadroomJson(result, out); });
-    }
-    if (args->json != "-") PrintHeadroomTable(result, std::cout);
-    return kExitOk;
-  }};
+            CheckOutputFile("--json", args->json);
+            const Plant plant = LoadPlant(args->plant);
+            const HeadroomResult result = RunHeadroom(plant, args->options);
+            // Everything is computed before the first byte is written.
+            if (args->json == "-") {
+              WriteHeadroomJson(result, std::cout);
+            } else if (!args->json.empty()) {
+              WriteFileAtomically(args->json,
+                                  [&](std::ostream& out) { WriteHeadroomJson(result, out); });
+            }
+            if (args->json != "-") PrintHeadroomTable(result, std::cout);
+            return kExitOk;
+          }};
 }
 
 }  // namespace overtone::app

@@ -37,10 +37,8 @@ Command AddScanCommand(CLI::App& app) {
   cmd->add_option("--band", args->options.band,
                   "risk band: a peak within this many orders of an injected order is at risk")
       ->capture_default_str();
-  cmd->add_option("--threads", args->options.threads, "worker threads (0 = all cores)")
-      ->check(CLI::Range(0, 1024));
-  cmd->add_option("--json", args->json, "write the scans as JSON to FILE ('-' for standard output)")
-      ->type_name("FILE");
+  AddThreadsOption(cmd, &args->options.threads, "worker threads");
+  AddJsonOption(cmd, &args->json, "the scans");
   cmd->add_option("--csv", args->csv_dir,
                   "write scan_points.csv, scan_peaks.csv, scan_transfers.csv into DIR")
       ->type_name("DIR");

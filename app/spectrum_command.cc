@@ -268,11 +268,12 @@ int Run(const Args& a) {
   };
   const std::string json =
       a.json.empty() ? "" : render([&](std::ostream& o) { WriteDriveJson(*group, o); });
-  const std::string csv =
-      a.waveform.empty() ? ""
-                         : render([&](std::ostream& o) { WriteDriveWaveformCsv(group->waveform, o); });
+  const std::string csv = a.waveform.empty() ? "" : render([&](std::ostream& o) {
+    WriteDriveWaveformCsv(group->waveform, o);
+  });
   const std::string svg =
-      a.svg.empty() ? "" : render([&](std::ostream& o) { WriteDriveWaveformSvg(*drive, *group, o); });
+      a.svg.empty() ? ""
+                    : render([&](std::ostream& o) { WriteDriveWaveformSvg(*drive, *group, o); });
   for (const auto& [path, text] :
        {Output{a.json, json}, Output{a.waveform, csv}, Output{a.svg, svg}}) {
     if (path.empty() || path == "-") continue;
@@ -296,9 +297,7 @@ Command AddSpectrumCommand(CLI::App& app) {
       "with its waveform and a chart");
   cmd->add_option("PLANT", args->plant, "plant file (YAML, format 1)")->required();
   cmd->add_option("--drive", args->drive, "the drive group")->type_name("NAME")->required();
-  cmd->add_option("--json", args->json,
-                  "write the group's drive entry as JSON to FILE ('-' for standard output)")
-      ->type_name("FILE");
+  AddJsonOption(cmd, &args->json, "the group's drive entry");
   cmd->add_option(
          "--waveform", args->waveform,
          "write one period (theta_deg, line_current_a, voltage_v, dc_voltage_v) as CSV to FILE")

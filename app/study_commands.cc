@@ -35,15 +35,11 @@ Command AddStudyCommand(CLI::App& app) {
   CLI::App* cmd = app.add_subcommand(
       "study", "Load flow, drive spectra and harmonic solve: bus distortion tables");
   cmd->add_option("PLANT", args->plant, "plant file (YAML, format 1)")->required();
-  cmd->add_option("--json", args->json,
-                  "write the results as JSON to FILE ('-' for standard output)")
-      ->type_name("FILE");
+  AddJsonOption(cmd, &args->json, "the results");
   cmd->add_option("--csv", args->csv_dir,
                   "write buses.csv, bus_harmonics.csv, drives.csv, branches.csv into DIR")
       ->type_name("DIR");
-  cmd->add_option("--threads", args->threads,
-                  "worker threads for the harmonic orders (0 = all cores)")
-      ->check(CLI::Range(0, 1024));
+  AddThreadsOption(cmd, &args->threads);
   cmd->add_flag("--no-scan", args->no_scan, "leave resonance screening (frequency scan) out");
   cmd->add_flag("--no-color", args->no_color,
                 "no colour in the tables (also when NO_COLOR is set)");

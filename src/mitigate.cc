@@ -99,34 +99,24 @@ std::vector<Drive> MainSources(const Plant& plant, const StudyResult& r) {
 // 3 % and 5 % line reactors on bridge groups without one; DC chokes of the same sizes on
 // capacitor-fed six-pulse groups without one (the usual catalogue sizes).
 void ReactorChanges(const std::vector<Drive>& groups, std::vector<Change>& out) {
+  // One option: `reactor` of the group set to `percent`, named by `what` and `kind`.
+  const auto add = [&out](const Drive& d, ReactorSpec Drive::*reactor, double percent,
+                          std::string_view what, std::string_view kind) {
+    Drive changed = d;
+    changed.*reactor = {ReactorSpec::Kind::kFraction, percent / 100.0};
+    out.push_back({fmt::format("{:g} % {}s on {}", percent, what, d.name), std::string(kind),
+                   fmt::format("{}-{:g}pct-{}", kind, percent, d.name),
+                   fmt::format("{:g} % {}, {}", percent, what, GroupSize(d)), kUnitsPerReactorGroup,
+                   internal::DriveYaml(changed), "", "", {}});
+  };
   for (const Drive& d : groups) {
     const bool bridge = IsSixPulseBridge(d.front_end) || d.front_end == FrontEnd::kSinglePhase;
     for (double percent : {3.0, 5.0}) {
       if (bridge && !HasReactor(d.line_reactor)) {
-        Drive changed = d;
-        changed.line_reactor = {ReactorSpec::Kind::kFraction, percent / 100.0};
-        out.push_back({fmt::format("{:g} % line reactors on {}", percent, d.name),
-                       "line-reactor",
-                       fmt::format("line-reactor-{:g}pct-{}", percent, d.name),
-                       fmt::format("{:g} % reactor, {}", percent, GroupSize(d)),
-                       kUnitsPerReactorGroup,
-                       internal::DriveYaml(changed),
-                       "",
-                       "",
-                       {}});
+        add(d, &Drive::line_reactor, percent, "line reactor", "line-reactor");
       }
       if (d.front_end == FrontEnd::kDiodeCapacitor && !HasReactor(d.dc_choke)) {
-        Drive changed = d;
-        changed.dc_choke = {ReactorSpec::Kind::kFraction, percent / 100.0};
-        out.push_back({fmt::format("{:g} % DC chokes on {}", percent, d.name),
-                       "dc-choke",
-                       fmt::format("dc-choke-{:g}pct-{}", percent, d.name),
-                       fmt::format("{:g} % DC choke, {}", percent, GroupSize(d)),
-                       kUnitsPerReactorGroup,
-                       internal::DriveYaml(changed),
-                       "",
-                       "",
-                       {}});
+        add(d, &Drive::dc_choke, percent, "DC choke", "dc-choke");
       }
     }
   }
