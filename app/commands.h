@@ -4,6 +4,7 @@
 
 #include <CLI/CLI.hpp>
 #include <functional>
+#include <ostream>
 #include <string>
 
 namespace overtone::app {
@@ -35,6 +36,11 @@ inline CLI::Option* AddThreadsOption(
   return cmd->add_option("--threads", *threads, what + " (0 = all cores)")
       ->check(CLI::Range(0, 1024));
 }
+
+// Writes a command's JSON to standard output (`path` is "-") or atomically to the file `path`
+// (nothing when empty). Returns whether the terminal tables should still be printed: not when
+// the JSON took standard output.
+bool WriteJson(const std::string& path, const std::function<void(std::ostream&)>& write);
 
 Command AddCheckCommand(CLI::App& app);
 Command AddStudyCommand(CLI::App& app);

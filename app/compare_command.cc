@@ -38,15 +38,9 @@ Command AddCompareCommand(CLI::App& app) {
             const StudyResult base = RunStudy(base_plant, options);
             const StudyResult proposed = RunStudy(proposed_plant, options);
             const Comparison c = CompareStudies(base, args->base, proposed, args->proposed);
-            if (args->json == "-") {
-              WriteComparisonJson(c, std::cout);
-              return kExitOk;
+            if (WriteJson(args->json, [&](std::ostream& out) { WriteComparisonJson(c, out); })) {
+              PrintComparison(c, std::cout, WantColour(args->no_color));
             }
-            if (!args->json.empty()) {
-              WriteFileAtomically(args->json,
-                                  [&](std::ostream& out) { WriteComparisonJson(c, out); });
-            }
-            PrintComparison(c, std::cout, WantColour(args->no_color));
             return kExitOk;
           }};
 }

@@ -39,13 +39,9 @@ Command AddHeadroomCommand(CLI::App& app) {
             const Plant plant = LoadPlant(args->plant);
             const HeadroomResult result = RunHeadroom(plant, args->options);
             // Everything is computed before the first byte is written.
-            if (args->json == "-") {
-              WriteHeadroomJson(result, std::cout);
-            } else if (!args->json.empty()) {
-              WriteFileAtomically(args->json,
-                                  [&](std::ostream& out) { WriteHeadroomJson(result, out); });
+            if (WriteJson(args->json, [&](std::ostream& out) { WriteHeadroomJson(result, out); })) {
+              PrintHeadroomTable(result, std::cout);
             }
-            if (args->json != "-") PrintHeadroomTable(result, std::cout);
             return kExitOk;
           }};
 }

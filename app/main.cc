@@ -1,23 +1,33 @@
 // app/main.cc — the overtone command line: parse arguments, run one command, map errors to exits.
-#include <iostream>
-
 #include <CLI/CLI.hpp>
+#include <iostream>
 
 #include "commands.h"
 #include "overtone/errors.h"
+#include "overtone/report.h"
 
 using namespace overtone::app;
 
+bool overtone::app::WriteJson(const std::string& path,
+                              const std::function<void(std::ostream&)>& write) {
+  if (path == "-") {
+    write(std::cout);
+    return false;
+  }
+  if (!path.empty()) overtone::WriteFileAtomically(path, write);
+  return true;
+}
+
 int main(int argc, char** argv) {
-  CLI::App app{"overtone: harmonic studies of industrial plants (a screening tool; see the "
-               "cautions in every report)"};
+  CLI::App app{
+      "overtone: harmonic studies of industrial plants (a screening tool; see the "
+      "cautions in every report)"};
   app.set_version_flag("--version", std::string("overtone ") + OVERTONE_VERSION);
   app.require_subcommand(1);
-  const std::vector<Command> commands = {AddCheckCommand(app), AddStudyCommand(app),
-                                         AddScanCommand(app), AddSpectrumCommand(app),
-                                         AddSweepCommand(app), AddReportCommand(app),
-                                         AddCompareCommand(app), AddHeadroomCommand(app),
-                                         AddMitigateCommand(app)};
+  const std::vector<Command> commands = {
+      AddCheckCommand(app),    AddStudyCommand(app),    AddScanCommand(app),
+      AddSpectrumCommand(app), AddSweepCommand(app),    AddReportCommand(app),
+      AddCompareCommand(app),  AddHeadroomCommand(app), AddMitigateCommand(app)};
 
   try {
     app.parse(argc, argv);

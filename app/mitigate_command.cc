@@ -28,28 +28,23 @@ Command AddMitigateCommand(CLI::App& app) {
       ->required();
   AddThreadsOption(cmd, &args->options.threads, "worker threads of each study");
   AddJsonOption(cmd, &args->json, "the options");
-  return {cmd, [args]() {
-            CheckOutputFile("--json", args->json);
-            CheckOutputFolder("-o", args->options.out_dir);
-            const Plant plant = LoadPlant(args->plant);
-            const MitigationResult result = EvaluateMitigations(plant, args->options);
-            // Everything is computed before the first byte is written.
-            WriteMitigationPlantFiles(result, args->options.out_dir);
-            if (args->json == "-") {
-              WriteMitigationJson(result, std::cout);
-            } else if (!args->json.empty()) {
-              WriteFileAtomically(args->json,
-                                  [&](std::ostream& out) { WriteMitigationJson(result, out); });
-            }
-            if (args->json != "-") {
-              PrintMitigationTable(result, std::cout);
-              if (!result.options.empty()) {
-                std::cout << "\nwrote " << result.options.size() << " option plant files into "
-                          << args->options.out_dir << '\n';
-              }
-            }
-            return kExitOk;
-          }};
+  return {
+      cmd, [args]() {
+        CheckOutputFile("--json", args->json);
+        CheckOutputFolder("-o", args->options.out_dir);
+        const Plant plant = LoadPlant(args->plant);
+        const MitigationResult result = EvaluateMitigations(plant, args->options);
+        // Everything is computed before the first byte is written.
+        WriteMitigationPlantFiles(result, args->options.out_dir);
+        if (WriteJson(args->json, [&](std::ostream& out) { WriteMitigationJson(result, out); })) {
+          PrintMitigationTable(result, std::cout);
+          if (!result.options.empty()) {
+            std::cout << "\nwrote " << result.options.size() << " option plant files into "
+                      << args->options.out_dir << '\n';
+          }
+        }
+        return kExitOk;
+      }};
 }
 
 }  // namespace overtone::app

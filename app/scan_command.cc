@@ -54,15 +54,11 @@ Command AddScanCommand(CLI::App& app) {
               variants.push_back(RunScan(plant, args->options, keep_curves));
             // Everything is computed before the first byte is written: a failure leaves no partial
             // output.
-            if (args->json == "-") {
-              WriteScanJson(variants, std::cout);
-            } else if (!args->json.empty()) {
-              WriteFileAtomically(args->json,
-                                  [&](std::ostream& out) { WriteScanJson(variants, out); });
-            }
+            const bool tables =
+                WriteJson(args->json, [&](std::ostream& out) { WriteScanJson(variants, out); });
             if (!args->csv_dir.empty()) WriteScanCsv(variants, args->csv_dir);
             if (!args->svg_dir.empty()) WriteScanSvg(variants, args->svg_dir);
-            if (args->json != "-") PrintScanTables(variants, std::cout);
+            if (tables) PrintScanTables(variants, std::cout);
             return kExitOk;
           }};
 }

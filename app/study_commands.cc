@@ -54,14 +54,10 @@ Command AddStudyCommand(CLI::App& app) {
             const StudyResult result = RunStudy(plant, options);
             // Everything is computed before the first byte is written: a failure leaves no partial
             // output.
-            if (args->json == "-") {
-              WriteStudyJson(result, std::cout);
-            } else if (!args->json.empty()) {
-              WriteFileAtomically(args->json,
-                                  [&](std::ostream& out) { WriteStudyJson(result, out); });
-            }
+            const bool tables =
+                WriteJson(args->json, [&](std::ostream& out) { WriteStudyJson(result, out); });
             if (!args->csv_dir.empty()) WriteStudyCsv(result, args->csv_dir);
-            if (args->json != "-") PrintStudyTables(result, std::cout, WantColour(args->no_color));
+            if (tables) PrintStudyTables(result, std::cout, WantColour(args->no_color));
             const bool violated = !result.assessment.violations.empty();
             return args->fail_on_violation && violated ? kExitViolation : kExitOk;
           }};
