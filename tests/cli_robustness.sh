@@ -31,8 +31,4 @@ status=0
 grep -q "^error: .*load flow.*'WEAK'" "$WORK/stderr" || fail "weak supply: bus not named on stderr"
 [ -e "$WORK/weak.json" ] && fail "weak supply: JSON written"
 
-if [ "$failures" -ne 0 ]; then
-  echo "$failures robustness check(s) failed" >&2
-  exit 1
-fi
-echo "CLI robustness checks passed"
+cli_finish "CLI robustness"

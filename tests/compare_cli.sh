@@ -140,22 +140,12 @@ assert doc["new_violations"] == [] and doc["cleared_violations"] == [] and doc["
 assert len(doc["remaining_violations"]) >= 1, doc  # the proposed demo case has violations
 PY
 
-# 4. Colour only on a terminal, and never with --no-color (script(1) gives the run a terminal).
-if command -v script >/dev/null; then
-  script -qec "'$BIN' compare '$PAIR/one-bus-base.yaml' '$PAIR/one-bus-drive.yaml'" /dev/null >"$WORK/tty.out" 2>&1
-  grep -q $'\x1b\\[' "$WORK/tty.out" || fail "terminal: no colour"
-  script -qec "'$BIN' compare '$PAIR/one-bus-base.yaml' '$PAIR/one-bus-drive.yaml' --no-color" /dev/null >"$WORK/nocolor.out" 2>&1
-  if grep -q $'\x1b\\[' "$WORK/nocolor.out"; then fail "--no-color: colour written"; fi
-  grep -q 'now FAIL' "$WORK/nocolor.out" || fail "--no-color: change not in words"
-fi
+# 4. Colour only on a terminal, and never with --no-color.
+check_terminal_colour compare 'now FAIL' "$BIN" compare "$PAIR/one-bus-base.yaml" "$PAIR/one-bus-drive.yaml"
 
 # 5. A bad proposed file: exit 2 with file:line:col, and no JSON written.
 run bad 2 "$BIN" compare "$PAIR/one-bus-base.yaml" "$SRC/tests/plants/bad/limits-broken.yaml" --json "$WORK/bad.json"
 grep -q ':[0-9]*:[0-9]*: error:' "$WORK/bad.err" || fail "bad: no located error"
 [ ! -e "$WORK/bad.json" ] || fail "bad: JSON written"
 
-if [ "$failures" -ne 0 ]; then
-  echo "$failures check(s) failed" >&2
-  exit 1
-fi
-echo "compare CLI: all checks passed"
+cli_finish "compare CLI"

@@ -37,14 +37,8 @@ grep -q 'FAIL' "$WORK/strict.out" || fail "strict: no FAIL in the Limits table"
 run strict_plain 0 "$BIN" study "$PLANTS/limits-strict.yaml" --no-scan
 grep -q ' FAIL$' "$WORK/strict_plain.out" || fail "strict: failures not marked in words"
 if grep -q $'\x1b' "$WORK/strict_plain.out"; then fail "strict: colour codes written to a pipe"; fi
-# Colour on a terminal only (script(1) gives the run one), never with --no-color.
-if command -v script >/dev/null; then
-  script -qec "'$BIN' study '$PLANTS/limits-strict.yaml' --no-scan" /dev/null >"$WORK/tty.out" 2>&1
-  grep -q $'\x1b\\[' "$WORK/tty.out" || fail "terminal: FAIL not in colour"
-  script -qec "'$BIN' study '$PLANTS/limits-strict.yaml' --no-scan --no-color" /dev/null >"$WORK/nocolor.out" 2>&1
-  if grep -q $'\x1b\\[' "$WORK/nocolor.out"; then fail "--no-color: colour written"; fi
-  grep -q 'FAIL' "$WORK/nocolor.out" || fail "--no-color: FAIL not in words"
-fi
+# Colour on a terminal only, never with --no-color.
+check_terminal_colour strict FAIL "$BIN" study "$PLANTS/limits-strict.yaml" --no-scan
 
 # 3. A profile file with an error: exit 2, file:line:col, no JSON left behind.
 run broken 2 "$BIN" study "$PLANTS/bad/limits-broken.yaml" --json "$WORK/broken.json"
@@ -54,8 +48,4 @@ grep -q 'broken-profile.yaml:7:13: error: `thd` must be a number' "$WORK/broken.
 run broken_check 2 "$BIN" check "$PLANTS/bad/limits-broken.yaml"
 grep -q 'broken-profile.yaml:7:13: error:' "$WORK/broken_check.err" || fail "broken: check does not read the profile"
 
-if [ "$failures" -ne 0 ]; then
-  echo "$failures check(s) failed" >&2
-  exit 1
-fi
-echo "limits CLI: all checks passed"
+cli_finish "limits CLI"

@@ -93,4 +93,4 @@ run plain 0 "$BIN" report "$MILL" -o "$WORK/plain"
 grep -q "Mitigation options" "$WORK/plain/report.md" && fail "report without --mitigate has the section"
 [ -e "$WORK/plain/mitigation" ] && fail "report without --mitigate wrote option files"
 
-exit $((failures > 0))
+cli_finish "mitigate CLI"

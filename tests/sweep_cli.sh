@@ -131,5 +131,4 @@ grep -q "3/2" "$WORK/bad_shard.err" || fail "bad shard: no message"
 [ -e "$WORK/bad-out" ] && fail "bad: wrote its output folder"
 run bad_gather 2 "$BIN" sweep --gather "$WORK/nothing-here"
 
-[ "$failures" -eq 0 ] || exit 1
-echo "sweep_cli: all checks passed"
+cli_finish "sweep CLI"

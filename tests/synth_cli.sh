@@ -67,5 +67,4 @@ done
 cmp -s "$WORK/t1.json" "$WORK/t2.json" || fail "JSON on 1 and 2 threads differs"
 grep -q '"resonances":\[{' "$WORK/t1.json" || fail "no resonance peaks screened"
 
-[ "$failures" -eq 0 ] || exit 1
-echo "synth_cli: all checks passed"
+cli_finish "synth CLI"
