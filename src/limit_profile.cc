@@ -2,9 +2,9 @@
 #include "limit_profile.h"
 
 #include <fmt/format.h>
-#include <yaml-cpp/yaml.h>
 
 #include <algorithm>
+#include <charconv>
 #include <cmath>
 #include <filesystem>
 #include <initializer_list>
@@ -12,6 +12,8 @@
 
 #include "overtone/errors.h"
 #include "overtone/load.h"
+#include "plant_text.h"
+#include "yaml_tree.h"
 
 namespace overtone::internal {
 namespace {
@@ -26,46 +28,45 @@ class ProfileReader {
  public:
   explicit ProfileReader(std::string file) : file_(std::move(file)) {}
 
-  void Error(const YAML::Node& node, const std::string& message) {
-    const YAML::Mark mark = node.Mark();
-    errors_.push_back({mark.is_null() ? SourceLocation{file_, 0, 0}
-                                      : SourceLocation{file_, mark.line + 1, mark.column + 1},
-                       message});
+  void Error(const YamlNode& node, const std::string& message) {
+    errors_.push_back({SourceLocation{file_, node.line(), node.column()}, message});
   }
 
   // Reports keys of `map` not in `allowed`; false when `map` is not a mapping.
-  bool Mapping(const YAML::Node& map, std::string_view what,
+  bool Mapping(const YamlNode& map, std::string_view what,
                std::initializer_list<std::string_view> allowed) {
     if (!map.IsMap()) {
       Error(map, fmt::format("{} must be a mapping", what));
       return false;
     }
-    for (const auto& kv : map) {
-      const std::string key = kv.first.Scalar();
+    for (std::size_t pair = 0; pair < map.size(); ++pair) {
+      const std::string_view key = map.Key(pair).Scalar();
       if (std::find(allowed.begin(), allowed.end(), key) == allowed.end()) {
-        Error(kv.first, fmt::format("unknown key `{}` in {}", key, what));
+        Error(map.Key(pair), fmt::format("unknown key `{}` in {}", key, what));
       }
     }
     return true;
   }
 
-  YAML::Node Required(const YAML::Node& map, const char* key, std::string_view what) {
-    const YAML::Node node = map[key];
+  YamlNode Required(const YamlNode& map, const char* key, std::string_view what) {
+    const YamlNode node = map[key];
     if (!node) Error(map, fmt::format("{} needs `{}`", what, key));
     return node;
   }
 
-  std::optional<double> Number(const YAML::Node& node, const char* key, double lo, double hi) {
-    try {
-      const double v = node.as<double>();
-      if (std::isfinite(v) && v >= lo && v <= hi) return v;
-    } catch (const YAML::Exception&) {
+  std::optional<double> Number(const YamlNode& node, const char* key, double lo, double hi) {
+    const std::string_view text = node.Scalar();
+    double v = 0.0;
+    const auto [end, error] = std::from_chars(text.data(), text.data() + text.size(), v);
+    if (!text.empty() && error == std::errc() && end == text.data() + text.size() &&
+        std::isfinite(v) && v >= lo && v <= hi) {
+      return v;
     }
     Error(node, fmt::format("`{}` must be a number from {} to {}", key, lo, hi));
     return std::nullopt;
   }
 
-  std::optional<int> Order(const YAML::Node& node, const char* key) {
+  std::optional<int> Order(const YamlNode& node, const char* key) {
     const std::optional<double> v = Number(node, key, 2, kMaxLimitOrder);
     if (v && *v != std::floor(*v)) {
       Error(node, fmt::format("`{}` must be a whole harmonic order", key));
@@ -75,7 +76,7 @@ class ProfileReader {
   }
 
   // `up_to_kv` of a class; classes rise, only the last may leave it out.
-  std::optional<double> UpTo(const YAML::Node& node, const char* key,
+  std::optional<double> UpTo(const YamlNode& node, const char* key,
                              std::optional<double>& previous, bool last) {
     if (!node[key]) {
       if (!last) Error(node, fmt::format("only the last entry may leave `{}` out", key));
@@ -90,7 +91,7 @@ class ProfileReader {
   }
 
   // One `orders` row of a voltage class into `limits`.
-  void VoltageOrders(const YAML::Node& row, OrderLimits& limits) {
+  void VoltageOrders(const YamlNode& row, OrderLimits& limits) {
     if (!Mapping(row, "an orders entry", {"order", "from", "to", "kind", "percent", "law"})) return;
     std::optional<int> from, to;
     if (row["order"]) {
@@ -118,7 +119,7 @@ class ProfileReader {
     std::optional<double> percent, times, n, plus;
     if (row["percent"] && row["law"]) Error(row, "give either `percent` or `law`");
     if (row["law"]) {
-      const YAML::Node law = row["law"];
+      const YamlNode law = row["law"];
       if (!Mapping(law, "a law", {"times", "n", "plus"})) return;
       times = Number(Required(law, "times", "a law"), "times", 0.0, 100.0);
       n = Number(Required(law, "n", "a law"), "n", 1.0, kMaxLimitOrder);
@@ -148,9 +149,9 @@ class ProfileReader {
     }
   }
 
-  void Voltage(const YAML::Node& node, LimitProfile& p) {
+  void Voltage(const YamlNode& node, LimitProfile& p) {
     if (!Mapping(node, "`voltage`", {"applies_at", "classes"})) return;
-    const YAML::Node at = Required(node, "applies_at", "`voltage`");
+    const YamlNode at = Required(node, "applies_at", "`voltage`");
     if (at) {
       if (at.Scalar() == "every-bus") {
         p.voltage_at_every_bus = true;
@@ -158,7 +159,7 @@ class ProfileReader {
         Error(at, fmt::format("`applies_at` must be `pcc` or `every-bus`, not `{}`", at.Scalar()));
       }
     }
-    const YAML::Node classes = Required(node, "classes", "`voltage`");
+    const YamlNode classes = Required(node, "classes", "`voltage`");
     if (!classes) return;
     if (!classes.IsSequence() || classes.size() == 0) {
       Error(classes, "`classes` must be a non-empty list");
@@ -166,30 +167,30 @@ class ProfileReader {
     }
     std::optional<double> previous;
     for (std::size_t i = 0; i < classes.size(); ++i) {
-      const YAML::Node c = classes[i];
+      const YamlNode c = classes[i];
       if (!Mapping(c, "a voltage class", {"up_to_kv", "thd", "orders"})) continue;
       VoltageLimitClass vc;
       vc.up_to_kv = UpTo(c, "up_to_kv", previous, i + 1 == classes.size());
       vc.thd_percent =
           Number(Required(c, "thd", "a voltage class"), "thd", 0.01, 100.0).value_or(0.0);
       vc.individual.resize(kMaxLimitOrder + 1);
-      const YAML::Node orders = Required(c, "orders", "a voltage class");
+      const YamlNode orders = Required(c, "orders", "a voltage class");
       if (orders && !orders.IsSequence()) Error(orders, "`orders` must be a list");
       if (orders && orders.IsSequence()) {
-        for (const YAML::Node& row : orders) VoltageOrders(row, vc.individual);
+        for (const YamlNode& row : orders) VoltageOrders(row, vc.individual);
       }
       p.voltage.push_back(std::move(vc));
     }
   }
 
   // `ranges: [[2, 10], ...]`: disjoint and rising.
-  std::vector<std::pair<int, int>> Ranges(const YAML::Node& node) {
+  std::vector<std::pair<int, int>> Ranges(const YamlNode& node) {
     std::vector<std::pair<int, int>> ranges;
     if (!node.IsSequence() || node.size() == 0) {
       Error(node, "`ranges` must be a non-empty list of [from, to] pairs");
       return {};
     }
-    for (const YAML::Node& r : node) {
+    for (const YamlNode& r : node) {
       if (!r.IsSequence() || r.size() != 2) {
         Error(r, "each range is a pair [from, to]");
         return {};
@@ -205,13 +206,13 @@ class ProfileReader {
     return ranges;
   }
 
-  void Current(const YAML::Node& node, LimitProfile& p) {
+  void Current(const YamlNode& node, LimitProfile& p) {
     if (!Mapping(node, "`current`", {"even_percent_of_odd", "classes"})) return;
     const double even = Number(Required(node, "even_percent_of_odd", "`current`"),
                                "even_percent_of_odd", 0.0, 100.0)
                             .value_or(100.0) /
                         100.0;
-    const YAML::Node classes = Required(node, "classes", "`current`");
+    const YamlNode classes = Required(node, "classes", "`current`");
     if (!classes) return;
     if (!classes.IsSequence() || classes.size() == 0) {
       Error(classes, "`classes` must be a non-empty list");
@@ -219,14 +220,14 @@ class ProfileReader {
     }
     std::optional<double> previous_kv;
     for (std::size_t i = 0; i < classes.size(); ++i) {
-      const YAML::Node c = classes[i];
+      const YamlNode c = classes[i];
       if (!Mapping(c, "a current class", {"up_to_kv", "ranges", "rows"})) continue;
       CurrentLimitClass cc;
       cc.up_to_kv = UpTo(c, "up_to_kv", previous_kv, i + 1 == classes.size());
-      const YAML::Node ranges_node = Required(c, "ranges", "a current class");
+      const YamlNode ranges_node = Required(c, "ranges", "a current class");
       const std::vector<std::pair<int, int>> ranges =
           ranges_node ? Ranges(ranges_node) : decltype(Ranges(c)){};
-      const YAML::Node rows = Required(c, "rows", "a current class");
+      const YamlNode rows = Required(c, "rows", "a current class");
       if (!rows) continue;
       if (!rows.IsSequence() || rows.size() == 0) {
         Error(rows, "`rows` must be a non-empty list");
@@ -234,14 +235,14 @@ class ProfileReader {
       }
       std::optional<double> previous_ratio;
       for (std::size_t k = 0; k < rows.size(); ++k) {
-        const YAML::Node row = rows[k];
+        const YamlNode row = rows[k];
         if (!Mapping(row, "a current row", {"isc_il_below", "odd", "tdd"})) continue;
         CurrentLimitRow cr;
         cr.isc_il_below = UpTo(row, "isc_il_below", previous_ratio, k + 1 == rows.size());
         cr.tdd_percent =
             Number(Required(row, "tdd", "a current row"), "tdd", 0.01, 100.0).value_or(0.0);
         cr.individual.resize(kMaxLimitOrder + 1);
-        const YAML::Node odd = Required(row, "odd", "a current row");
+        const YamlNode odd = Required(row, "odd", "a current row");
         if (!odd) continue;
         if (!odd.IsSequence() || odd.size() != ranges.size()) {
           if (!ranges.empty())
@@ -261,18 +262,18 @@ class ProfileReader {
     }
   }
 
-  LimitProfile Read(const YAML::Node& root) {
+  LimitProfile Read(const YamlNode& root) {
     LimitProfile p;
     p.file = file_;
     if (!Mapping(root, "a limit profile",
                  {"overtone_limits", "name", "title", "voltage", "current"}))
       Throw();
-    const YAML::Node version = Required(root, "overtone_limits", "a limit profile");
+    const YamlNode version = Required(root, "overtone_limits", "a limit profile");
     if (version && version.Scalar() != "1")
       Error(version, "`overtone_limits` must be 1 (this version reads format 1)");
-    if (const YAML::Node name = Required(root, "name", "a limit profile")) p.name = name.Scalar();
-    p.title = root["title"] ? root["title"].Scalar() : p.name;
-    if (const YAML::Node voltage = Required(root, "voltage", "a limit profile"))
+    if (const YamlNode name = Required(root, "name", "a limit profile")) p.name = name.Scalar();
+    p.title = root["title"] ? std::string(root["title"].Scalar()) : p.name;
+    if (const YamlNode voltage = Required(root, "voltage", "a limit profile"))
       Voltage(voltage, p);
     if (root["current"]) Current(root["current"], p);
     if (!errors_.empty()) Throw();
@@ -325,15 +326,8 @@ std::string BuiltinLimitsDir() {
 }
 
 LimitProfile ReadLimitProfile(const std::string& path) {
-  YAML::Node root;
-  try {
-    root = YAML::LoadFile(path);
-  } catch (const YAML::BadFile&) {
-    throw InputError({path, 0, 0}, "cannot read the limit profile file");
-  } catch (const YAML::ParserException& e) {
-    throw InputError({path, e.mark.line + 1, e.mark.column + 1}, e.msg);
-  }
-  return ProfileReader(path).Read(root);
+  const YamlDocument document = ReadYamlFile(path, {"limit profile", "overtone_limits: 1"});
+  return ProfileReader(path).Read(document.documents()[0]);
 }
 
 LimitProfile LoadLimitProfile(const std::string& name_or_path) {

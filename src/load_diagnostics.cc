@@ -5,10 +5,8 @@
 
 namespace overtone::internal {
 
-SourceLocation Locate(const YAML::Node& node, const std::string& file) {
-  const YAML::Mark mark = node.Mark();
-  if (mark.is_null()) return {file, 0, 0};
-  return {file, mark.line + 1, mark.column + 1};
+SourceLocation Locate(const YamlNode& node, const std::string& file) {
+  return {file, node.line(), node.column()};
 }
 
 std::string FormatPlace(const SourceLocation& where) {

@@ -11,7 +11,7 @@
 #include <vector>
 
 #include <fmt/format.h>
-#include <yaml-cpp/yaml.h>
+#include "yaml_tree.h"
 
 #include "overtone/errors.h"
 #include "overtone/plant.h"
@@ -45,7 +45,7 @@ class Diagnostics {
 };
 
 // Where `node` starts in `file` (1-based line and column).
-SourceLocation Locate(const YAML::Node& node, const std::string& file);
+SourceLocation Locate(const YamlNode& node, const std::string& file);
 // "file:line:col" of a place, for messages that point at another place.
 std::string FormatPlace(const SourceLocation& where);
 // Levenshtein distance, ignoring letter case (a wrong case is the commonest slip).

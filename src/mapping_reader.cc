@@ -5,11 +5,12 @@
 
 namespace overtone::internal {
 
-std::vector<Entry> MapEntries(const YAML::Node& map, const std::string& file,
+std::vector<Entry> MapEntries(const YamlNode& map, const std::string& file,
                               Diagnostics* diagnostics) {
   std::vector<Entry> entries;
-  for (const auto& item : map) {
-    const YAML::Node& key = item.first;
+  entries.reserve(map.size());
+  for (std::size_t pair = 0; pair < map.size(); ++pair) {
+    const YamlNode key = map.Key(pair);
     if (!key.IsScalar()) {
       diagnostics->Error(Locate(key, file), "a key must be a plain word such as `kv`");
       continue;
@@ -20,19 +21,12 @@ std::vector<Entry> MapEntries(const YAML::Node& map, const std::string& file,
                                                         key.Scalar(), first->KeyWhere().line));
       continue;
     }
-    entries.push_back({key.Scalar(), key, item.second, file});
+    entries.push_back({std::string(key.Scalar()), key, map.Value(pair), file});
   }
   return entries;
 }
 
-std::string_view ShapeOf(const YAML::Node& node) {
-  if (node.IsSequence()) return "a list";
-  if (node.IsMap()) return "a mapping";
-  if (node.IsNull()) return "empty";
-  return "a single value";
-}
-
-std::optional<MappingReader> ReadMapping(const YAML::Node& node, const std::string& file,
+std::optional<MappingReader> ReadMapping(const YamlNode& node, const std::string& file,
                                          std::string_view noun, std::span<const KeySpec> specs,
                                          Diagnostics* diagnostics) {
   if (!node.IsMap()) {

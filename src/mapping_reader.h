@@ -10,7 +10,7 @@
 #include <vector>
 
 #include <fmt/format.h>
-#include <yaml-cpp/yaml.h>
+#include "yaml_tree.h"
 
 #include "load_diagnostics.h"
 #include "plant_keys.h"
@@ -20,37 +20,22 @@ namespace overtone::internal {
 
 // MappingReader: reads the keys of one mapping through its key table.
 
-// A YAML node that can be stored in containers. YAML::Node's own assignment writes into the node
-// it refers to (and so into the document), which would corrupt inherited content when elements
-// are replaced or removed; this handle's assignment re-points the handle instead.
-class NodeRef : public YAML::Node {
- public:
-  NodeRef(const YAML::Node& node) : YAML::Node(node) {}  // NOLINT: implicit by design
-  NodeRef(const NodeRef& other) = default;
-  NodeRef& operator=(const NodeRef& other) {
-    reset(other);
-    return *this;
-  }
-};
-
 // One key of a mapping, its value, and the file it was written in.
 struct Entry {
   std::string key;
-  NodeRef key_node;
-  NodeRef value;
+  YamlNode key_node;
+  YamlNode value;
   std::string file;
 
   SourceLocation KeyWhere() const { return Locate(key_node, file); }
-  // An empty value has no place of its own in yaml-cpp, so it takes its key's.
+  // An empty value's place is wherever the parser noticed it was empty; its key's is clearer.
   SourceLocation ValueWhere() const { return value.IsNull() ? KeyWhere() : Locate(value, file); }
 };
 
 // The keys of `map` in order; a key written twice is reported and its second value dropped.
-std::vector<Entry> MapEntries(const YAML::Node& map, const std::string& file,
+std::vector<Entry> MapEntries(const YamlNode& map, const std::string& file,
                               Diagnostics* diagnostics);
 
-// "a list", "a mapping", "empty" or "a single value", for messages.
-std::string_view ShapeOf(const YAML::Node& node);
 
 class MappingReader {
  public:
@@ -113,12 +98,12 @@ class MappingReader {
                                                      ShapeOf(entry->value)));
       return std::nullopt;
     }
-    const std::string& text = entry->value.Scalar();
+    const std::string_view text = entry->value.Scalar();
     if (text.find_first_not_of(" \t") == std::string::npos) {
       Error(key, fmt::format("`{}` is empty", key));
       return std::nullopt;
     }
-    return text;
+    return std::string(text);
   }
 
   // A quantity in one of the kinds the table gives this key, checked against that kind's range.
@@ -164,11 +149,11 @@ class MappingReader {
   }
 
   // The list under `key`; an empty node when absent, empty or not a list (reported).
-  YAML::Node List(std::string_view key) {
+  YamlNode List(std::string_view key) {
     RequireType(key, ValueType::kList, ValueType::kList);
     return Container(key, /*want_list=*/true);
   }
-  YAML::Node Mapping(std::string_view key) {
+  YamlNode Mapping(std::string_view key) {
     RequireType(key, ValueType::kMapping, ValueType::kMapping);
     return Container(key, /*want_list=*/false);
   }
@@ -241,15 +226,15 @@ class MappingReader {
     return "";
   }
 
-  YAML::Node Container(std::string_view key, bool want_list) {
+  YamlNode Container(std::string_view key, bool want_list) {
     const Entry* entry = Find(key);
-    if (!entry || entry->value.IsNull()) return YAML::Node();
+    if (!entry || entry->value.IsNull()) return YamlNode();
     if (want_list ? entry->value.IsSequence() : entry->value.IsMap()) return entry->value;
     Error(key, want_list ? fmt::format("`{}` must be a list (`- ...` lines or `[a, b]`), not {}",
                                        key, ShapeOf(entry->value))
                          : fmt::format("`{}` must be a mapping of keys, not {}", key,
                                        ShapeOf(entry->value)));
-    return YAML::Node();
+    return YamlNode();
   }
 
   std::vector<Entry> entries_;
@@ -261,7 +246,7 @@ class MappingReader {
 };
 
 // A reader for an element or table row; nothing when `node` is not a mapping (reported).
-std::optional<MappingReader> ReadMapping(const YAML::Node& node, const std::string& file,
+std::optional<MappingReader> ReadMapping(const YamlNode& node, const std::string& file,
                                          std::string_view noun, std::span<const KeySpec> specs,
                                          Diagnostics* diagnostics);
 

@@ -92,6 +92,10 @@ class PlantBuilder {
 
   Plant Build(const RawPlant& raw) {
     plant_.source_file = file_name_;
+    std::size_t elements = 0;
+    for (const std::vector<RawElement>& section : raw.sections) elements += section.size();
+    names_.reserve(elements);
+    bus_volts_.reserve(raw.sections[kBuses].size());
     for (const RawElement& bus : raw.sections[kBuses]) {
       if (!bus.name.empty()) bus_names_.insert(bus.name);
     }
@@ -120,6 +124,7 @@ class PlantBuilder {
   void ReadSection(const RawPlant& raw, Section section, std::vector<T>* out,
                    T (PlantBuilder::*read)(MappingReader&)) {
     const SectionInfo& info = kSections[section];
+    out->reserve(raw.sections[section].size());
     for (const RawElement& element : raw.sections[section]) {
       std::optional<MappingReader> reader =
           ReadMapping(element.node, element.file, info.noun, info.keys, diagnostics_);
@@ -213,9 +218,9 @@ class PlantBuilder {
 
   std::vector<HarmonicEntry> ReadHarmonics(MappingReader& r, std::string_view key) {
     std::vector<HarmonicEntry> table;
-    const YAML::Node rows = r.List(key);
+    const YamlNode rows = r.List(key);
     const std::string file = r.FileOf(key);
-    for (const YAML::Node& node : rows) {
+    for (const YamlNode& node : rows) {
       std::optional<MappingReader> row =
           ReadMapping(node, file, "harmonic entry", kHarmonicKeys, diagnostics_);
       if (!row) continue;

@@ -3,7 +3,6 @@
 
 #include <filesystem>
 
-#include <yaml-cpp/depthguard.h>
 
 #include "plant_text.h"
 
@@ -12,14 +11,10 @@ namespace {
 
 namespace fs = std::filesystem;
 
-std::string ElementName(const YAML::Node& node) {
-  if (!node.IsMap()) return "";
-  for (const auto& item : node) {
-    if (item.first.IsScalar() && item.first.Scalar() == "name") {
-      return item.second.IsScalar() ? item.second.Scalar() : "";
-    }
-  }
-  return "";
+
+std::string ElementName(const YamlNode& node) {
+  const YamlNode name = node["name"];
+  return std::string(name.Scalar());
 }
 
 fs::path Canonical(const std::string& path) {
@@ -48,9 +43,11 @@ class PlantFileReader {
   };
 
   std::optional<RawPlant> ReadOne(const std::string& file, const std::string& text) {
-    const std::optional<YAML::Node> root = Parse(file, text);
-    if (!root) return std::nullopt;
-    MappingReader top(MapEntries(*root, file, diagnostics_), Locate(*root, file), "the plant file",
+    std::optional<YamlDocument> document =
+        ParseYamlText(file, text, {"plant", "overtone: 1"}, diagnostics_);
+    if (!document) return std::nullopt;
+    const YamlNode root = document->documents()[0];
+    MappingReader top(MapEntries(root, file, diagnostics_), Locate(root, file), "the plant file",
                       kTopKeys, diagnostics_);
     if (!CheckVersion(top)) return std::nullopt;
     top.CheckKeys();
@@ -61,47 +58,11 @@ class PlantFileReader {
       plant = std::move(*base);
     }
     plant.top_where = top.where();
+    plant.documents.push_back(std::move(*document));
     RemoveInherited(top, &plant);
     MergeStudy(top, &plant);
     MergeSections(top, &plant);
     return plant;
-  }
-
-  std::optional<YAML::Node> Parse(const std::string& file, const std::string& text) {
-    if (!CheckText(file, text, diagnostics_)) return std::nullopt;
-    if (!CheckNesting(file, text, diagnostics_)) return std::nullopt;
-    std::vector<YAML::Node> documents;
-    try {
-      documents = YAML::LoadAll(text);
-    } catch (const YAML::DeepRecursion& e) {
-      diagnostics_->Error({file, e.mark.line + 1, e.mark.column + 1},
-                          "the YAML nests too deeply here; a plant file needs three levels");
-      return std::nullopt;
-    } catch (const YAML::Exception& e) {
-      const SourceLocation where = e.mark.is_null()
-                                       ? SourceLocation{file, 0, 0}
-                                       : SourceLocation{file, e.mark.line + 1, e.mark.column + 1};
-      diagnostics_->Error(where, fmt::format("YAML syntax error: {}", e.msg));
-      return std::nullopt;
-    }
-    if (documents.empty() || documents[0].IsNull()) {
-      diagnostics_->Error({file, 1, 1},
-                          "the file is empty; a plant file starts with `overtone: 1`");
-      return std::nullopt;
-    }
-    if (documents.size() > 1 && !documents[1].IsNull()) {
-      diagnostics_->Error(Locate(documents[1], file),
-                          "a second YAML document starts here; a plant file holds one");
-      return std::nullopt;
-    }
-    if (!documents[0].IsMap()) {
-      diagnostics_->Error(Locate(documents[0], file),
-                          fmt::format("a plant file is a mapping of keys (`overtone: 1`, "
-                                      "`buses:` ...), not {}",
-                                      ShapeOf(documents[0])));
-      return std::nullopt;
-    }
-    return documents[0];
   }
 
   bool CheckVersion(MappingReader& top) {
@@ -146,19 +107,19 @@ class PlantFileReader {
   }
 
   void RemoveInherited(MappingReader& top, RawPlant* plant) {
-    const YAML::Node names = top.List("remove");
+    const YamlNode names = top.List("remove");
     if (names.size() == 0) return;
     if (!top.Has("extends")) {
       top.Error("remove", "`remove` drops inherited elements, but this file has no `extends`");
       return;
     }
     const std::string file = top.FileOf("remove");
-    for (const YAML::Node& item : names) {
+    for (const YamlNode& item : names) {
       if (!item.IsScalar()) {
         diagnostics_->Error(Locate(item, file), "each entry of `remove` must be a name");
         continue;
       }
-      if (!EraseInherited(item.Scalar(), plant)) {
+      if (!EraseInherited(std::string(item.Scalar()), plant)) {
         diagnostics_->Error(Locate(item, file),
                             fmt::format("`{}` is not inherited, so it cannot be removed{}",
                                         item.Scalar(), DidYouMean(item.Scalar(), Names(*plant))));
@@ -187,7 +148,7 @@ class PlantFileReader {
 
   // `study` merges key by key: a key written here replaces the inherited one.
   void MergeStudy(MappingReader& top, RawPlant* plant) {
-    const YAML::Node study = top.Mapping("study");
+    const YamlNode study = top.Mapping("study");
     if (!study.IsMap()) return;
     const std::string file = top.FileOf("study");
     plant->study_where = Locate(study, file);
@@ -206,11 +167,11 @@ class PlantFileReader {
   void MergeSections(MappingReader& top, RawPlant* plant) {
     for (size_t section = 0; section < kSectionCount; ++section) {
       const std::string_view key = kSections[section].key;
-      const YAML::Node list = top.List(key);
+      const YamlNode list = top.List(key);
       std::vector<RawElement>& elements = plant->sections[section];
       const size_t inherited = elements.size();
       std::vector<bool> replaced(inherited, false);
-      for (const YAML::Node& node : list) {
+      for (const YamlNode& node : list) {
         RawElement element{ElementName(node), node, top.FileOf(key)};
         size_t slot = 0;
         while (slot < inherited &&

@@ -54,11 +54,12 @@ constexpr SectionInfo kSections[kSectionCount] = {
 
 struct RawElement {
   std::string name;  // empty when missing or malformed (reported when the element is read)
-  NodeRef node;
+  YamlNode node;
   std::string file;
 };
 
 struct RawPlant {
+  std::vector<YamlDocument> documents;  // the files read; the elements' nodes live in them
   SourceLocation top_where;  // the root file's top-level mapping
   std::vector<Entry> study;  // merged key by key; each entry keeps its own file
   SourceLocation study_where;

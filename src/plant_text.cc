@@ -1,6 +1,7 @@
-// src/plant_text.cc — a plant file's bytes: reading them and checking the text before YAML parsing.
+// src/plant_text.cc — a YAML file of the project: its bytes, checks of its text, its one document.
 #include "plant_text.h"
 
+#include <array>
 #include <cerrno>
 #include <cstring>
 #include <filesystem>
@@ -34,6 +35,9 @@ std::optional<std::string> ReadTextFile(const std::string& path, std::string* er
   }
   // Read in blocks up to a cap, so that a device such as /dev/zero is refused, not read forever.
   std::string text;
+  if (const auto size = fs::file_size(path, code); !code && size <= kMaxFileBytes) {
+    text.reserve(size);  // one allocation for a regular file
+  }
   std::array<char, 1 << 16> block;
   while (in.read(block.data(), block.size()) || in.gcount() > 0) {
     text.append(block.data(), static_cast<size_t>(in.gcount()));
@@ -128,65 +132,53 @@ bool CheckText(const std::string& file, std::string_view text, Diagnostics* diag
   return ok;
 }
 
-// Deepest `[`/`{` nesting accepted. A plant file needs three levels; the limit keeps the parser's
-// recursion (and the stack) small whatever the input.
-constexpr int kMaxFlowDepth = 64;
+// Deepest nesting of lists and mappings read. A plant file needs four levels; the limit refuses
+// files that are not the project's before they cost memory.
+constexpr int kMaxDepth = 64;
 
-// Reports the first `[` or `{` nested deeper than kMaxFlowDepth, outside quotes and comments,
-// and a `,` that begins a line (or follows `---`) outside `[...]` and `{...}`: never part of a
-// plant file, and yaml-cpp 0.7 loops forever on some of them (found by tools/fuzz).
-bool CheckNesting(const std::string& file, std::string_view text, Diagnostics* diagnostics) {
-  int depth = 0;
-  int line = 1;
-  int column = 0;
-  size_t line_start = 0;
-  char quote = 0;  // the open quote, 0 outside quotes
-  bool comment = false;
-  char previous = '\n';
-  for (size_t pos = 0; pos < text.size(); ++pos) {
-    const char c = text[pos];
-    if ((static_cast<unsigned char>(c) & 0xC0) != 0x80) ++column;  // UTF-8 lead bytes only
-    if (c == '\n') {
-      ++line;
-      column = 0;
-      line_start = pos + 1;
-      comment = false;
-    } else if (comment) {
-      // nothing nests inside a comment
-    } else if (quote != 0) {
-      if (quote == '"' && c == '\\') {
-        ++pos;  // an escaped character
-        ++column;
-      } else if (c == quote) {
-        quote = 0;
-      }
-    } else if (c == '#' && (previous == ' ' || previous == '\t' || previous == '\n')) {
-      comment = true;
-    } else if ((c == '"' || c == '\'') &&
-               std::string_view(" \t\n[{,:").find(previous) != std::string_view::npos) {
-      quote = c;
-    } else if (c == '[' || c == '{') {
-      if (++depth > kMaxFlowDepth) {
-        diagnostics->Error({file, line, column},
-                           fmt::format("`{}` nests lists and mappings deeper than {} levels; a "
-                                       "plant file needs three",
-                                       c, kMaxFlowDepth));
-        return false;
-      }
-    } else if ((c == ']' || c == '}') && depth > 0) {
-      --depth;
-    } else if (c == ',' && depth == 0) {
-      std::string_view before = text.substr(line_start, pos - line_start);
-      before.remove_prefix(std::min(before.find_first_not_of(' '), before.size()));
-      if (before.empty() || before.starts_with("---")) {
-        diagnostics->Error({file, line, column},
-                           "a `,` separates entries only inside `[...]` or `{...}`");
-        return false;
-      }
-    }
-    previous = c;
+std::optional<YamlDocument> ParseYamlText(const std::string& file, std::string_view text,
+                                          YamlFileKind kind, Diagnostics* diagnostics) {
+  if (!CheckText(file, text, diagnostics)) return std::nullopt;
+  YamlProblem problem;
+  std::optional<YamlDocument> parsed = YamlDocument::Parse(text, kMaxDepth, &problem);
+  if (!parsed) {
+    diagnostics->Error({file, problem.line, problem.column},
+                       problem.kind == YamlProblem::Kind::kTooDeep
+                           ? fmt::format("{}; a {} file needs a few", problem.message, kind.noun)
+                           : fmt::format("YAML syntax error: {}", problem.message));
+    return std::nullopt;
   }
-  return true;
+  const std::vector<YamlNode>& documents = parsed->documents();
+  if (documents.empty() || documents[0].IsNull()) {
+    diagnostics->Error({file, 1, 1}, fmt::format("the file is empty; a {} file starts with `{}`",
+                                                 kind.noun, kind.first_line));
+    return std::nullopt;
+  }
+  if (documents.size() > 1 && !documents[1].IsNull()) {
+    diagnostics->Error(Locate(documents[1], file),
+                       fmt::format("a second YAML document starts here; a {} file holds one",
+                                   kind.noun));
+    return std::nullopt;
+  }
+  if (!documents[0].IsMap()) {
+    diagnostics->Error(Locate(documents[0], file),
+                       fmt::format("a {} file is a mapping of keys (`{}` ...), not {}", kind.noun,
+                                   kind.first_line, ShapeOf(documents[0])));
+    return std::nullopt;
+  }
+  return parsed;
+}
+
+YamlDocument ReadYamlFile(const std::string& path, YamlFileKind kind) {
+  std::string error;
+  const std::optional<std::string> text = ReadTextFile(path, &error);
+  if (!text) {
+    throw InputError({path, 0, 0}, fmt::format("cannot read the {} file: {}", kind.noun, error));
+  }
+  Diagnostics diagnostics;
+  std::optional<YamlDocument> document = ParseYamlText(path, *text, kind, &diagnostics);
+  if (!document) diagnostics.Throw();
+  return std::move(*document);
 }
 
 // ---------------------------------------------------------------------------------------------

@@ -15,7 +15,6 @@
 
 #include <fmt/format.h>
 #include <nlohmann/json.hpp>
-#include <yaml-cpp/yaml.h>
 
 #include "overtone/errors.h"
 #include "overtone/load.h"
@@ -23,8 +22,10 @@
 #include "overtone/study.h"
 #include "output_common.h"
 #include "parallel.h"
+#include "plant_text.h"
 #include "sweep.h"
 #include "units.h"
+#include "yaml_tree.h"
 
 namespace overtone {
 namespace internal {
@@ -42,18 +43,18 @@ namespace {
 
 namespace fs = std::filesystem;
 using internal::QuantityKind;
+using internal::YamlNode;
+
+// Largest `add_drives` list written back for the loader: far above any real list.
+constexpr std::size_t kMaxAddedDrivesBytes = std::size_t{16} << 20;
 
 // Collects located problems in the sweep file and throws them together.
 class SweepReader {
  public:
   explicit SweepReader(std::string file) : file_(std::move(file)) {}
 
-  SourceLocation Where(const YAML::Node& node) const {
-    const YAML::Mark m = node.Mark();
-    if (m.is_null()) return {file_, 0, 0};
-    return {file_, m.line + 1, m.column + 1};
-  }
-  void Error(const YAML::Node& node, const std::string& message) {
+  SourceLocation Where(const YamlNode& node) const { return {file_, node.line(), node.column()}; }
+  void Error(const YamlNode& node, const std::string& message) {
     errors_.push_back({Where(node), message});
   }
   void Add(const std::vector<Diagnostic>& more) {
@@ -69,24 +70,24 @@ class SweepReader {
   }
 
   // Keys of a map outside `allowed` are errors.
-  bool CheckMap(const YAML::Node& node, const std::string& what,
+  bool CheckMap(const YamlNode& node, const std::string& what,
                 std::initializer_list<const char*> allowed) {
     if (!node.IsMap()) {
       Error(node, fmt::format("{} must be a mapping", what));
       return false;
     }
-    for (const auto& kv : node) {
-      const std::string key = kv.first.Scalar();
+    for (std::size_t pair = 0; pair < node.size(); ++pair) {
+      const std::string_view key = node.Key(pair).Scalar();
       if (std::none_of(allowed.begin(), allowed.end(), [&](const char* a) { return key == a; })) {
         std::string list;
         for (const char* a : allowed) list += (list.empty() ? "" : ", ") + std::string(a);
-        Error(kv.first, fmt::format("unknown key `{}` in {} (known: {})", key, what, list));
+        Error(node.Key(pair), fmt::format("unknown key `{}` in {} (known: {})", key, what, list));
       }
     }
     return true;
   }
 
-  std::optional<double> Quantity(const YAML::Node& node, QuantityKind kind, const char* bare,
+  std::optional<double> Quantity(const YamlNode& node, QuantityKind kind, const char* bare,
                                  const std::string& what) {
     if (!node.IsScalar()) {
       Error(node, fmt::format("{} must be a single value", what));
@@ -98,10 +99,10 @@ class SweepReader {
     return q ? std::optional<double>(q->value) : std::nullopt;
   }
 
-  std::optional<long> Integer(const YAML::Node& node, long lo, long hi, const std::string& what) {
+  std::optional<long> Integer(const YamlNode& node, long lo, long hi, const std::string& what) {
     long v = 0;
     std::size_t used = 0;
-    const std::string text = node.IsScalar() ? node.Scalar() : "";
+    const std::string text(node.Scalar());
     try {
       v = std::stol(text, &used);
     } catch (const std::exception&) {
@@ -137,19 +138,23 @@ std::set<std::string> ElementNames(const Plant& p) {
 
 // Drive groups to add, read by the plant loader itself: a plant text that extends the base and
 // lists them. Problems the loader finds are placed at the `add_drives` entry of the sweep file.
-std::vector<Drive> ReadAddedDrives(const YAML::Node& list, const Sweep& sweep, SweepReader& r) {
+std::vector<Drive> ReadAddedDrives(const YamlNode& list, const Sweep& sweep, SweepReader& r) {
   if (!list.IsSequence()) {
     r.Error(list, "`add_drives` must be a list of drive group entries (plant file format)");
     return {};
   }
-  YAML::Emitter emit;
-  emit << YAML::BeginMap << YAML::Key << "overtone" << YAML::Value << 1 << YAML::Key << "extends"
-       << YAML::Value << fs::absolute(sweep.base.source_file).string() << YAML::Key << "drives"
-       << YAML::Value << list << YAML::EndMap;
+  const std::optional<std::string> drives = internal::ToFlowYaml(list, kMaxAddedDrivesBytes);
+  if (!drives) {
+    r.Error(list, "`add_drives` is too large (aliases multiply it beyond a plant file's size)");
+    return {};
+  }
+  const std::string text =
+      fmt::format("overtone: 1\nextends: {}\ndrives: {}\n",
+                  internal::DoubleQuoted(fs::absolute(sweep.base.source_file).string()), *drives);
   const std::string virtual_file = sweep.source_file + " (add_drives)";
   std::vector<Drive> added;
   try {
-    const Plant with = LoadPlantFromString(emit.c_str(), virtual_file);
+    const Plant with = LoadPlantFromString(text, virtual_file);
     const std::set<std::string> base_names = ElementNames(sweep.base);
     std::set<std::string> base_drives;
     for (const Drive& d : sweep.base.drives) base_drives.insert(d.name);
@@ -157,7 +162,7 @@ std::vector<Drive> ReadAddedDrives(const YAML::Node& list, const Sweep& sweep, S
       if (base_drives.count(d.name) == 0) added.push_back(d);
     }
     for (std::size_t i = 0; i < list.size(); ++i) {
-      const std::string name = list[i].IsMap() && list[i]["name"] ? list[i]["name"].Scalar() : "";
+      const std::string name(list[i]["name"].Scalar());
       if (base_names.count(name) != 0) {
         r.Error(list[i], fmt::format("`{}` is already an element of the base plant; an added "
                                      "drive group needs a new name", name));
@@ -177,39 +182,39 @@ std::vector<Drive> ReadAddedDrives(const YAML::Node& list, const Sweep& sweep, S
   return added;
 }
 
-void ReadExplicitCase(const YAML::Node& node, const Sweep& sweep, SweepReader& r, SweepCase& c) {
+void ReadExplicitCase(const YamlNode& node, const Sweep& sweep, SweepReader& r, SweepCase& c) {
   if (!r.CheckMap(node, "a case", {"name", "loading_scale", "capacitors", "add_drives"})) return;
   if (node["name"]) {
-    c.name = node["name"].IsScalar() ? node["name"].Scalar() : "";
+    c.name = node["name"].Scalar();
   } else {
     r.Error(node, "a case needs a `name`");
   }
-  if (const YAML::Node f = node["loading_scale"]) {
+  if (const YamlNode f = node["loading_scale"]) {
     c.loading_factor = r.Quantity(f, QuantityKind::kFraction, "", "loading_scale").value_or(1.0);
   }
-  if (const YAML::Node caps = node["capacitors"]) {
+  if (const YamlNode caps = node["capacitors"]) {
     if (!caps.IsMap()) {
       r.Error(caps, "`capacitors` maps bank names to steps in service, e.g. {PFC-1: 2}");
     } else {
-      for (const auto& kv : caps) {
-        const std::string bank = kv.first.Scalar();
+      for (std::size_t pair = 0; pair < caps.size(); ++pair) {
+        const std::string bank(caps.Key(pair).Scalar());
         const auto it = std::find_if(sweep.base.capacitors.begin(), sweep.base.capacitors.end(),
                                      [&](const Capacitor& b) { return b.name == bank; });
         if (it == sweep.base.capacitors.end()) {
-          r.Error(kv.first, fmt::format("no capacitor bank `{}` in the base plant", bank));
+          r.Error(caps.Key(pair), fmt::format("no capacitor bank `{}` in the base plant", bank));
           continue;
         }
-        const auto on = r.Integer(kv.second, 0, it->steps,
+        const auto on = r.Integer(caps.Value(pair), 0, it->steps,
                                   fmt::format("steps in service of `{}`", bank));
         if (on) c.steps_on[bank] = static_cast<int>(*on);
       }
     }
   }
-  if (const YAML::Node add = node["add_drives"]) c.added_drives = ReadAddedDrives(add, sweep, r);
+  if (const YamlNode add = node["add_drives"]) c.added_drives = ReadAddedDrives(add, sweep, r);
 }
 
 // Scaled loadings must stay within the plant format's range for `loading`: (0, 200 %].
-void CheckScaledLoading(const YAML::Node& node, const Sweep& sweep, double factor, SweepReader& r) {
+void CheckScaledLoading(const YamlNode& node, const Sweep& sweep, double factor, SweepReader& r) {
   if (!(factor > 0.0)) {
     r.Error(node, "a loading scale must be above 0");
     return;
@@ -230,14 +235,8 @@ Sweep LoadSweep(const std::string& path) {
   Sweep sweep;
   sweep.source_file = path;
   SweepReader r(path);
-  YAML::Node top;
-  try {
-    top = YAML::LoadFile(path);
-  } catch (const YAML::BadFile&) {
-    throw InputError({path, 0, 0}, "cannot read the sweep file");
-  } catch (const YAML::Exception& e) {
-    throw InputError({path, e.mark.line + 1, e.mark.column + 1}, e.msg);
-  }
+  const internal::YamlDocument document = internal::ReadYamlFile(path, {"sweep", "overtone_sweep: 1"});
+  const YamlNode top = document.documents()[0];
   if (!r.CheckMap(top, "the sweep file",
                   {"overtone_sweep", "plant", "cases", "loading_levels", "montecarlo"})) {
     r.ThrowIfAny();
@@ -256,7 +255,7 @@ Sweep LoadSweep(const std::string& path) {
   const fs::path plant_path = fs::path(path).parent_path() / top["plant"].Scalar();
   sweep.base = LoadPlant(plant_path.string());
 
-  if (const YAML::Node list = top["cases"]) {
+  if (const YamlNode list = top["cases"]) {
     if (!list.IsSequence()) r.Error(list, "`cases` must be a list");
     for (std::size_t i = 0; list.IsSequence() && i < list.size(); ++i) {
       SweepCase c;
@@ -267,7 +266,7 @@ Sweep LoadSweep(const std::string& path) {
       sweep.cases.push_back(std::move(c));
     }
   }
-  if (const YAML::Node levels = top["loading_levels"]) {
+  if (const YamlNode levels = top["loading_levels"]) {
     if (!levels.IsSequence()) r.Error(levels, "`loading_levels` must be a list of factors (80 %)");
     for (std::size_t i = 0; levels.IsSequence() && i < levels.size(); ++i) {
       const auto f = r.Quantity(levels[i], QuantityKind::kFraction, "", "a loading level");
@@ -281,7 +280,7 @@ Sweep LoadSweep(const std::string& path) {
       sweep.cases.push_back(std::move(c));
     }
   }
-  if (const YAML::Node mc = top["montecarlo"]) {
+  if (const YamlNode mc = top["montecarlo"]) {
     if (r.CheckMap(mc, "`montecarlo`", {"cases", "seed", "loading"})) {
       std::optional<long> n;
       if (mc["cases"]) n = r.Integer(mc["cases"], 1, 1000000, "`cases`");
@@ -290,7 +289,7 @@ Sweep LoadSweep(const std::string& path) {
       if (mc["seed"]) seed = r.Integer(mc["seed"], 0, 2147483647, "`seed`");
       if (!mc["seed"]) r.Error(mc, "`montecarlo` needs a `seed` (any whole number)");
       std::optional<double> lo, hi;
-      const YAML::Node loading = mc["loading"];
+      const YamlNode loading = mc["loading"];
       if (!loading) {
         r.Error(mc, "`montecarlo` needs `loading: {min: 50 %, max: 100 %}`");
       } else if (r.CheckMap(loading, "`loading`", {"min", "max"})) {

@@ -104,14 +104,14 @@ Diagnostic FirstError(const std::string& text) {
 }
 
 // Inputs too big to keep in tests/bad, generated here. PLANT-FORMAT.md "Errors": refused with a
-// located message, never a crash (the parser's recursion is bounded by the loader's nesting check).
+// located message, never a crash. The top-level mapping is the first of the 64 levels allowed.
 TEST_CASE("generated adversarial inputs are refused with a located error", "[bad_inputs]") {
   SECTION("10,000 nested `[`, closed and unclosed") {
     for (const std::string& tail : {std::string(), std::string(10000, ']')}) {
       const Diagnostic first = FirstError("overtone: 1\nbuses: " + std::string(10000, '[') + tail);
       INFO(FormatDiagnostic(first));
       CHECK(first.where.line == 2);
-      CHECK(first.where.column == 8 + 64);  // the 65th `[`, after "buses: "
+      CHECK(first.where.column == 8 + 63);  // the 64th `[` after "buses: ", level 65
       CHECK_THAT(first.message, Catch::Contains("deeper than 64 levels"));
     }
   }
@@ -121,7 +121,7 @@ TEST_CASE("generated adversarial inputs are refused with a located error", "[bad
     const Diagnostic first = FirstError(text);
     INFO(FormatDiagnostic(first));
     CHECK(first.where.line == 2);
-    CHECK(first.where.column == 8 + 64 * 4);  // the 65th `{`
+    CHECK(first.where.column == 8 + 63 * 4);  // the 64th `{`, level 65
   }
   SECTION("10,000 nested block sequences") {
     std::string text = "overtone: 1\nbuses:\n  ";
@@ -129,7 +129,8 @@ TEST_CASE("generated adversarial inputs are refused with a located error", "[bad
     const Diagnostic first = FirstError(text + "x\n");
     INFO(FormatDiagnostic(first));
     CHECK(first.where.line == 3);
-    CHECK_THAT(first.message, Catch::Contains("nests too deeply"));
+    CHECK(first.where.column == 3 + 63 * 2);  // the 64th `-`, level 65
+    CHECK_THAT(first.message, Catch::Contains("deeper than 64 levels"));
   }
   SECTION("50 MB of random bytes from a fixed seed") {
     std::mt19937 random(8);  // the standard fixes mt19937's sequence, so the bytes are the same

@@ -39,7 +39,7 @@ done
 # Generated here, too big to keep: 10,000 nested `[` (refused at the 65th, column 72 of line 2)
 # and 50 MB of random bytes from a fixed seed (refused at the first byte that is not UTF-8).
 python3 -c "import sys; sys.stdout.write('overtone: 1\nbuses: ' + '[' * 10000)" >"$WORK/deep.yaml"
-expect_input_error "study deep nesting" "$WORK/deep.yaml:2:72" "$WORK/deep.json" \
+expect_input_error "study deep nesting" "$WORK/deep.yaml:2:71" "$WORK/deep.json" \
   "$BIN" study "$WORK/deep.yaml" --json "$WORK/deep.json"
 python3 -c "import random, sys; random.seed(8); sys.stdout.buffer.write(random.randbytes(50 << 20))" \
   >"$WORK/random.yaml"

@@ -2,7 +2,7 @@
 set -euo pipefail
 ROOT=$(cd "$(dirname "${BASH_SOURCE[0]}")/.." && pwd)
 BUILD=${OVERTONE_BUILD_DIR:-$ROOT/build}
-PACKAGES=(cmake g++ make libeigen3-dev libsuitesparse-dev libyaml-cpp-dev libspdlog-dev catch2
+PACKAGES=(cmake g++ make libeigen3-dev libsuitesparse-dev libyaml-dev libspdlog-dev catch2
           libcli11-dev nlohmann-json3-dev libfmt-dev ngspice python3 python3-numpy python3-yaml)
 
 install_missing() {
