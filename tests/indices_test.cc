@@ -37,6 +37,21 @@ TEST_CASE("The waveform peak adds harmonics in phase at the crest", "[indices]")
   CHECK(ComputeIndices(v, 0.0).peak == Approx(dense).epsilon(1e-7));
 }
 
+TEST_CASE("A flat-topped wave peaks off its axis where the closed form says", "[indices]") {
+  // v(x) = cos x - a cos 3x with a > 1/9 (textbook closed form: dv/dx = 0 with the triple-angle
+  // identity sin 3x = 3 sin x - 4 sin^3 x gives cos^2 x = (1 + 3a) / (12a), and there
+  // v = (2/3)(1 + 3a) cos x). Shifting time by x0 (X_h e^{j h x0}) moves the crest between the
+  // sample points without changing its height, so the polish, not the sampling, is checked.
+  const double a = 0.2;
+  const double crest = 2.0 / 3.0 * (1.0 + 3.0 * a) * std::sqrt((1.0 + 3.0 * a) / (12.0 * a));
+  for (double x0 : {0.0, 0.1234, 1.0, 2.5}) {
+    std::vector<Phasor> v(4);
+    v[1] = std::polar(1.0, x0);
+    v[3] = std::polar(-a, 3.0 * x0);
+    CHECK(ComputeIndices(v, 0.0).peak == Approx(crest).epsilon(1e-12));
+  }
+}
+
 TEST_CASE("A zero fundamental gives zero THD, not NaN", "[indices]") {
   std::vector<Phasor> v(10);
   v[5] = 0.1;
