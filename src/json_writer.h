@@ -129,27 +129,27 @@ class JsonWriter {
       return;
     }
     constexpr auto kLow = static_cast<std::int64_t>(kPow10[kDigits - 1]), kHigh = 10 * kLow;
-    // The decimal exponent; log10's round-off can only make it one too small next to a power of
-    // ten (then m reaches kHigh) or one too large (then m is exactly kLow, still right).
-    int e = static_cast<int>(std::floor(std::log10(a)));
-    auto m = std::llround(a * kPow10[kDigits - 1 - e]);
-    if (m >= kHigh) m = std::llround(a * kPow10[kDigits - 2 - e]), ++e;
+    int e = 5;  // the decimal exponent, -4..5
+    while (a < kPow10[e + 4] * 1e-4) --e;
+    // a * 10^p is one rounding from exact, so a tie may rarely round the other way.
+    auto m = static_cast<std::int64_t>(a * kPow10[kDigits - 1 - e] + 0.5);
+    if (m >= kHigh) m = kLow, ++e;  // 9.99...95 and above round up to the next power of ten
+    char text[32];
+    char* out = text;
+    if (v < 0) *out++ = '-';
+    if (e < 0) {
+      *out++ = '0', *out++ = '.';
+      for (int i = -1; i > e; --i) *out++ = '0';
+    }
     char digits[kDigits];
     for (int i = kDigits - 1; i >= 0; --i) digits[i] = static_cast<char>('0' + m % 10), m /= 10;
     int last = kDigits;  // digits kept after dropping trailing zeros of the fraction
     while (last > std::max(e + 1, 1) && digits[last - 1] == '0') --last;
-    if (v < 0) buf_.push_back('-');
-    if (e < 0) {
-      Append("0.");
-      for (int i = -1; i > e; --i) buf_.push_back('0');
-      Append({digits, static_cast<std::size_t>(last)});
-      return;
+    for (int i = 0; i < last; ++i) {
+      if (i == e + 1 && e >= 0) *out++ = '.';
+      *out++ = digits[i];
     }
-    Append({digits, static_cast<std::size_t>(e + 1)});
-    if (last > e + 1) {
-      buf_.push_back('.');
-      Append({digits + e + 1, static_cast<std::size_t>(last - e - 1)});
-    }
+    buf_.append(text, out);
   }
 
   static constexpr double kPow10[] = {1e0, 1e1, 1e2,  1e3,  1e4,  1e5,  1e6,
