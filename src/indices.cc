@@ -87,6 +87,7 @@ double WaveformPeak(const std::vector<Phasor>& x) {
   for (std::size_t k = 1; k < n; ++k) {
     if (std::abs(samples[k]) > std::abs(samples[best])) best = k;
   }
+  if (samples[best] == 0.0) return 0.0;  // no waveform (an idle branch): nothing to polish
   const double dt = 2.0 * std::numbers::pi / static_cast<double>(n);
   return PolishPeak(x, static_cast<double>(best) * dt, dt, samples[best] < 0.0 ? -1.0 : 1.0);
 }
