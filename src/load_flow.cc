@@ -56,34 +56,65 @@ std::vector<Complex> SourceCurrents(const Network& net) {
 
 }  // namespace
 
-LoadFlowResult SolveLoadFlow(const Network& net, const std::vector<Complex>& power_drawn,
-                             const LoadFlowOptions& options) {
-  const CscPattern& yp = net.pattern();
-  const int n = net.bus_count();
-  std::vector<Complex> y1(static_cast<std::size_t>(yp.nnz()));
-  net.Fill(1.0, Sequence::kPositive, Shunts::kFundamental, y1);
-  const std::vector<Complex> injected = SourceCurrents(net);
-
-  // No-load start: Y1 V0 = I_N.
-  LoadFlowResult result;
-  {
-    SparseAnalysis analysis(yp);
-    SparseLu<Complex> lu(analysis);
-    result.voltage = injected;
-    if (!lu.Factor(y1) || !lu.Solve(result.voltage)) {
-      throw SolveError("the fundamental network is singular: check that every bus is connected "
-                       "to a supply through transformers and cables");
-    }
+LoadFlowSolver::LoadFlowSolver(const Network& network)
+    : net_(network),
+      y1_(static_cast<std::size_t>(network.pattern().nnz())),
+      injected_(SourceCurrents(network)),
+      jacobian_pattern_(BlockPattern(network.pattern())),
+      jacobian_analysis_(jacobian_pattern_),
+      jacobian_lu_(jacobian_analysis_) {
+  net_.Fill(1.0, Sequence::kPositive, Shunts::kFundamental, y1_);
+  // No-load solution: Y1 V0 = I_N.
+  SparseAnalysis analysis(net_.pattern());
+  SparseLu<Complex> lu(analysis);
+  no_load_ = injected_;
+  if (!lu.Factor(y1_) || !lu.Solve(no_load_)) {
+    throw SolveError("the fundamental network is singular: check that every bus is connected "
+                     "to a supply through transformers and cables");
   }
+}
 
-  const CscPattern jp = BlockPattern(yp);
-  SparseAnalysis analysis(jp);
-  SparseLu<double> lu(analysis);
-  std::vector<double> jac(static_cast<std::size_t>(jp.nnz()));
+LoadFlowResult LoadFlowSolver::Solve(const std::vector<Complex>& power_drawn,
+                                     const LoadFlowOptions& options,
+                                     const std::vector<Complex>* start) {
+  int worst_bus = 0;
+  LoadFlowResult result;
+  if (start) result = Newton(power_drawn, options, *start, &worst_bus);
+  if (!start || !(result.max_mismatch_pu <= options.tolerance_pu)) {
+    result = Newton(power_drawn, options, no_load_, &worst_bus);
+  }
+  const double worst = result.max_mismatch_pu;
+  if (!std::isfinite(worst)) {
+    throw SolveError(fmt::format(
+        "the load flow diverged (voltage collapse) near bus '{}': the constant-power load is more "
+        "than the supply can deliver; check the supply's short_circuit and the load, motor and "
+        "drive ratings", net_.bus(worst_bus).name));
+  }
+  if (!(worst <= options.tolerance_pu)) {
+    throw SolveError(fmt::format(
+        "the load flow did not converge after {} iterations: the largest power mismatch is {:.4g} kVA "
+        "at bus '{}' (|V| = {:.3f} pu); the plant may be overloaded for its supply, or a load, "
+        "motor or drive rating may be wrong",
+        result.iterations, worst * kBaseVa / 1e3, net_.bus(worst_bus).name,
+        std::abs(result.voltage[worst_bus])));
+  }
+  return result;
+}
+
+LoadFlowResult LoadFlowSolver::Newton(const std::vector<Complex>& power_drawn,
+                                      const LoadFlowOptions& options, std::vector<Complex> start,
+                                      int* worst_bus_out) {
+  const CscPattern& yp = net_.pattern();
+  const int n = net_.bus_count();
+  const std::vector<Complex>& y1 = y1_;
+  const std::vector<Complex>& injected = injected_;
+  SparseLu<double>& lu = jacobian_lu_;
+  LoadFlowResult result;
+  result.voltage = std::move(start);
+  std::vector<double> jac(static_cast<std::size_t>(jacobian_pattern_.nnz()));
   std::vector<double> step(static_cast<std::size_t>(2 * n));
   std::vector<Complex> mismatch(static_cast<std::size_t>(n));
   std::vector<Complex>& v = result.voltage;
-
   auto residual = [&]() {
     double worst = 0.0;
     int worst_bus = 0;
@@ -134,20 +165,13 @@ LoadFlowResult SolveLoadFlow(const Network& net, const std::vector<Complex>& pow
     result.iterations = it + 1;
   }
   result.max_mismatch_pu = worst;
-  if (!std::isfinite(worst)) {
-    throw SolveError(fmt::format(
-        "the load flow diverged (voltage collapse) near bus '{}': the constant-power load is more "
-        "than the supply can deliver; check the supply's short_circuit and the load, motor and "
-        "drive ratings", net.bus(worst_bus).name));
-  }
-  if (!(worst <= options.tolerance_pu)) {
-    throw SolveError(fmt::format(
-        "the load flow did not converge after {} iterations: the largest power mismatch is {:.4g} kVA "
-        "at bus '{}' (|V| = {:.3f} pu); the plant may be overloaded for its supply, or a load, "
-        "motor or drive rating may be wrong",
-        result.iterations, worst * kBaseVa / 1e3, net.bus(worst_bus).name, std::abs(v[worst_bus])));
-  }
+  *worst_bus_out = worst_bus;
   return result;
+}
+
+LoadFlowResult SolveLoadFlow(const Network& network, const std::vector<Complex>& power_drawn,
+                             const LoadFlowOptions& options) {
+  return LoadFlowSolver(network).Solve(power_drawn, options);
 }
 
 }  // namespace overtone::internal
