@@ -29,8 +29,10 @@ class LoadFlowSolver {
   // Throws SolveError when the network is singular (a bus without a path to a source).
   explicit LoadFlowSolver(const Network& network);
 
-  // Starts from `start` (an earlier solution) when given, else from the no-load solution; a start
-  // that does not converge is retried from no load. Throws SolveError naming the worst bus.
+  // Starts from `start` when given, else from the no-load solution; a start that does not converge
+  // is retried from no load. Newton finds the root nearest its start, so `start` must be an
+  // earlier solution for nearby powers (a start near zero can find the low-voltage root).
+  // Throws SolveError naming the worst bus.
   LoadFlowResult Solve(const std::vector<Complex>& power_drawn, const LoadFlowOptions& options = {},
                        const std::vector<Complex>* start = nullptr);
 

@@ -39,6 +39,17 @@ TEST_CASE("Two-bus load flow matches the closed-form receiving-end voltage", "[l
   // And the power balance: P drawn = P delivered, V conj(I) = S.
   const Complex i = (Complex{1.0, 0.0} - flow.voltage[0]) / Complex{r, x};
   CHECK(std::abs(flow.voltage[0] * std::conj(i) - Complex{p, q}) < 1e-8);
+
+  // One solver, solved again from a start off by 5 % and 3 degrees: the same answer. A start near
+  // the equation's other root, |V|^2 = (a - sqrt(...)) / 2, finds that root: a start must be an
+  // earlier solution for nearby powers (LoadFlowSolver::Solve).
+  LoadFlowSolver solver(net);
+  const std::vector<Complex> near = {flow.voltage[0] * std::polar(1.05, 0.05)};
+  CHECK(std::abs(solver.Solve(drawn, {}, &near).voltage[0]) == Approx(std::sqrt(v2)).epsilon(1e-9));
+  const double v2_low = (a - std::sqrt(a * a - 4.0 * z * z * (p * p + q * q))) / 2.0;
+  const std::vector<Complex> low = {Complex{0.05, 0.0}};
+  CHECK(std::abs(solver.Solve(drawn, {}, &low).voltage[0]) ==
+        Approx(std::sqrt(v2_low)).epsilon(1e-9));
 }
 
 TEST_CASE("A load beyond the supply's capability fails naming the bus", "[load_flow]") {
