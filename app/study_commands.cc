@@ -55,7 +55,7 @@ Command AddStudyCommand(CLI::App& app) {
             // Everything is computed before the first byte is written: a failure leaves no partial
             // output.
             const bool tables =
-                WriteJson(args->json, [&](std::ostream& out) { WriteStudyJson(result, out); });
+                WriteJson(args->json, [&](std::ostream& out) { WriteStudyJson(result, out, args->threads); });
             if (!args->csv_dir.empty()) WriteStudyCsv(result, args->csv_dir);
             if (tables) PrintStudyTables(result, std::cout, WantColour(args->no_color));
             const bool violated = !result.assessment.violations.empty();

@@ -61,6 +61,14 @@ class JsonWriter {
   JsonWriter& Value(const char* v) { return Value(std::string_view(v)); }
   template <typename T>
   JsonWriter& Field(std::string_view key, const T& v) { Key(key); return Value(v); }
+  // Values already written by another writer inside an array (`a,b,c` without the brackets),
+  // as the next values at this level: for items formatted apart, in parallel.
+  JsonWriter& Values(std::string_view values) {
+    if (values.empty()) return *this;
+    Prefix();
+    Append(values);
+    return Done();
+  }
   JsonWriter& StringArray(std::string_view key, const std::vector<std::string>& items) {
     Key(key).BeginArray();
     for (const std::string& s : items) Value(s);

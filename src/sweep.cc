@@ -386,7 +386,7 @@ SweepRunCounts RunSweep(const Sweep& sweep, const SweepRunOptions& o, std::ostre
         try {
           const StudyResult result = RunStudy(BuildCasePlant(sweep, c), options);
           WriteFileAtomically((dir / "study.json").string(),
-                              [&](std::ostream& out) { WriteStudyJson(result, out); });
+                              [&](std::ostream& out) { WriteStudyJson(result, out, 1); });  // cases run in parallel
           fs::remove(dir / "failed.txt");
           // The marker last: its presence means study.json is complete.
           WriteFileAtomically((dir / "done").string(), [&](std::ostream& out) {

@@ -111,8 +111,8 @@ TEST_CASE("Results and JSON do not depend on the thread count", "[study]") {
   // DESIGN.md section 5: each order is refactored from one fixed reference factorization.
   const Plant plant = TwoGroupPlant(11);
   std::ostringstream one, two;
-  WriteStudyJson(RunStudy(plant, StudyOptions{1}), one);
-  WriteStudyJson(RunStudy(plant, StudyOptions{2}), two);
+  WriteStudyJson(RunStudy(plant, StudyOptions{1}), one, 1);
+  WriteStudyJson(RunStudy(plant, StudyOptions{2}), two, 2);
   CHECK(one.str() == two.str());
 }
 

@@ -26,8 +26,9 @@ void PrintStudyTables(const StudyResult& result, std::ostream& out, bool colour 
 // set, and `--no-color` (`no_color`) was not given.
 bool WantColour(bool no_color);
 
-// The JSON document of PLANT-FORMAT.md ("overtone study PLANT --json"), streamed.
-void WriteStudyJson(const StudyResult& result, std::ostream& out);
+// The JSON document of PLANT-FORMAT.md ("overtone study PLANT --json"), streamed; the long
+// arrays are formatted on `threads` threads (0 = all cores), the bytes the same whatever the count.
+void WriteStudyJson(const StudyResult& result, std::ostream& out, int threads = 0);
 
 // One `drives` entry of the study JSON alone (`overtone spectrum --json`).
 void WriteDriveJson(const DriveResult& drive, std::ostream& out);
