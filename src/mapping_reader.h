@@ -46,16 +46,17 @@ class MappingReader {
         where_(std::move(where)),
         noun_(noun),
         specs_(specs),
-        diagnostics_(diagnostics) {
-    const Entry* name = Find("name");
-    title_ = (name && name->value.IsScalar() && !name->value.Scalar().empty())
-                 ? fmt::format("{} `{}`", noun, name->value.Scalar())
-                 : std::string(noun);
-  }
+        diagnostics_(diagnostics) {}
 
   const SourceLocation& where() const { return where_; }
   std::string_view noun() const { return noun_; }
-  const std::string& title() const { return title_; }
+  // "transformer `T1`" when the name is readable, else the noun; for messages only.
+  std::string title() const {
+    const Entry* name = Find("name");
+    return (name && name->value.IsScalar() && !name->value.Scalar().empty())
+               ? fmt::format("{} `{}`", noun_, name->value.Scalar())
+               : std::string(noun_);
+  }
   bool Has(std::string_view key) const { return Find(key) != nullptr; }
   std::string FileOf(std::string_view key) const {
     const Entry* entry = Find(key);
@@ -73,11 +74,11 @@ class MappingReader {
       std::string hint = DidYouMean(entry.key, known);
       if (hint.empty()) hint = fmt::format("; known keys: {}", JoinNames(known));
       diagnostics_->Error(entry.KeyWhere(),
-                          fmt::format("unknown key `{}` in {}{}", entry.key, title_, hint));
+                          fmt::format("unknown key `{}` in {}{}", entry.key, title(), hint));
     }
     for (const KeySpec& spec : specs_) {
       if (spec.need == kRequired && !Has(spec.key)) {
-        diagnostics_->Error(where_, fmt::format("{} is missing `{}`", title_, spec.key));
+        diagnostics_->Error(where_, fmt::format("{} is missing `{}`", title(), spec.key));
       }
     }
   }
@@ -240,7 +241,6 @@ class MappingReader {
   std::vector<Entry> entries_;
   SourceLocation where_;
   std::string_view noun_;
-  std::string title_;  // "transformer `T1`"
   std::span<const KeySpec> specs_;
   Diagnostics* diagnostics_;
 };
