@@ -12,6 +12,7 @@
 
 #include "overtone/errors.h"
 #include "overtone/load.h"
+#include "load_diagnostics.h"
 #include "plant_text.h"
 #include "yaml_tree.h"
 
@@ -29,7 +30,7 @@ class ProfileReader {
   explicit ProfileReader(std::string file) : file_(std::move(file)) {}
 
   void Error(const YamlNode& node, const std::string& message) {
-    errors_.push_back({SourceLocation{file_, node.line(), node.column()}, message});
+    errors_.push_back({Locate(node, file_), message});
   }
 
   // Reports keys of `map` not in `allowed`; false when `map` is not a mapping.

@@ -21,6 +21,7 @@
 #include "overtone/report.h"
 #include "overtone/study.h"
 #include "output_common.h"
+#include "load_diagnostics.h"
 #include "parallel.h"
 #include "plant_text.h"
 #include "sweep.h"
@@ -53,7 +54,7 @@ class SweepReader {
  public:
   explicit SweepReader(std::string file) : file_(std::move(file)) {}
 
-  SourceLocation Where(const YamlNode& node) const { return {file_, node.line(), node.column()}; }
+  SourceLocation Where(const YamlNode& node) const { return internal::Locate(node, file_); }
   void Error(const YamlNode& node, const std::string& message) {
     errors_.push_back({Where(node), message});
   }
