@@ -475,8 +475,14 @@ BridgeSolution SampleCycle(const BridgeParameters& p, Simulator& sim, PeriodicSt
   sim.Run(x.z, x.topology, steps, on_sample, on_switch);
 
   BridgeWaveform& w = s.waveform;
+  const std::size_t points = 1 + segments * (seg.size() - 1);
+  s.samples_theta.reserve(points);
+  s.samples_current.reserve(points);
   s.samples_theta = {theta0};
   s.samples_current = {seg.front().i[0]};
+  for (std::vector<double>* v : {&w.theta, &w.line_current, &w.terminal_voltage, &w.dc_voltage}) {
+    v->reserve(kSamplesPerCycle);
+  }
   for (int k = 0; k < segments; ++k) {
     const int m = k % phases;
     const double sign = k % 2 == 0 ? 1.0 : -1.0;

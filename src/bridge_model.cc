@@ -3,6 +3,7 @@
 
 #include <cmath>
 #include <numbers>
+#include <stdexcept>
 
 #include <fmt/format.h>
 
@@ -130,6 +131,10 @@ const BridgeSolution& BridgeCache::SolveExactly(const BridgeParameters& p,
   // Solved outside the lock; two threads meeting the same new circuit both solve it, with the
   // same result, and the first one stored is kept.
   BridgeSolution solution = SolveBridge(p, max_order_, from);
+  // Only the spectrum and figures are looked at again: the samples go, and the waveform unless kept.
+  solution.samples_theta = {};
+  solution.samples_current = {};
+  if (!keep_waveforms_) solution.waveform = {};
   std::lock_guard lock(mutex_);
   return solutions_.emplace(key, std::move(solution)).first->second;
 }
@@ -142,7 +147,7 @@ SolvedCircuit BridgeCache::Solve(const BridgeParameters& p, double emf, bool exa
   const BridgeStart* from = interpolate_ ? table_.StartNear(p, emf) : nullptr;
   const BridgeSolution& s = SolveExactly(OnEmfBase(p, emf), from);
   return {s.current, s.power, s.dc_voltage, s.peak_current, s.conduction_deg, s.overlap_deg,
-          &s.waveform, 1.0, false};
+          keep_waveforms_ ? &s.waveform : nullptr, 1.0, false};
 }
 
 double DefaultDcCapacitance(const Drive& d, double nominal_v) {
@@ -200,6 +205,7 @@ GroupSpectrum ComputeGroupSpectrum(const Drive& d, const BusSupply& bus, BridgeC
 BridgeWaveform GroupWaveform(const Drive& d, const BusSupply& bus, BridgeCache& cache, bool exact) {
   const CircuitPlan c = PlanCircuits(d, bus).front();
   const SolvedCircuit s = cache.Solve(c.parameters, std::abs(bus.emf), exact);
+  if (s.waveform == nullptr) throw std::logic_error("GroupWaveform needs a cache keeping waveforms");
   const double v_emf = std::abs(bus.emf) * bus.nominal_v;
   const double amps = s.waveform_scale * c.rated_va / v_emf;
   BridgeWaveform w = *s.waveform;

@@ -56,7 +56,9 @@ constexpr int kMaxExactCircuits = 32;
 class BridgeCache {
  public:
   using Key = std::array<double, 10>;
-  explicit BridgeCache(int max_order) : max_order_(max_order), table_(max_order) {}
+  // Solutions keep one period of their waveforms only with `keep_waveforms` (GroupWaveform).
+  BridgeCache(int max_order, bool keep_waveforms)
+      : max_order_(max_order), keep_waveforms_(keep_waveforms), table_(max_order, keep_waveforms) {}
 
   // The exact key of a circuit in bridge.h units.
   Key KeyOf(const BridgeParameters& p) const;
@@ -71,6 +73,7 @@ class BridgeCache {
   const BridgeSolution& SolveExactly(const BridgeParameters& p, const BridgeStart* from);
 
   int max_order_;
+  bool keep_waveforms_;
   bool interpolate_ = false;
   BridgeTable table_;
   std::mutex mutex_;
@@ -91,6 +94,7 @@ GroupSpectrum ComputeGroupSpectrum(const Drive& drive, const BusSupply& supply, 
 
 // One period of the group's representative unit circuit against `supply`, in amperes and volts,
 // study frame angles: kept apart from the spectrum since only charts and CSV files need it.
+// The cache must keep waveforms.
 BridgeWaveform GroupWaveform(const Drive& drive, const BusSupply& supply, BridgeCache& cache,
                              bool exact);
 

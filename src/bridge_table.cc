@@ -152,7 +152,7 @@ const BridgeTable::Node& BridgeTable::Solved(const Kind& kind, Index index) {
   node->peak_current = s.peak_current;
   node->conduction_deg = s.conduction_deg;
   node->overlap_deg = s.overlap_deg;
-  node->waveform = std::move(s.waveform);
+  if (keep_waveforms_) node->waveform = std::move(s.waveform);
   node->failed = false;
   return *node;
 }
@@ -279,7 +279,7 @@ std::optional<SolvedCircuit> BridgeTable::Interpolate(const BridgeParameters& p,
   out.peak_current = scale * blend->peak_current;
   out.conduction_deg = blend->conduction_deg;
   out.overlap_deg = blend->overlap_deg;
-  out.waveform = &blend->nearest->waveform;
+  out.waveform = keep_waveforms_ ? &blend->nearest->waveform : nullptr;
   out.waveform_scale = scale;
   return out;
 }

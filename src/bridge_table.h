@@ -33,8 +33,8 @@
 
 namespace overtone::internal {
 
-// A bridge solution in the units of bridge.h (voltage unit: the EMF). The waveform is that of a
-// solved circuit (for an interpolated point, the nearest node, whose reactor is lumped with the
+// A bridge solution in the units of bridge.h (voltage unit: the EMF). The waveform, null unless
+// waveforms are kept, is that of a solved circuit (for an interpolated point, the nearest node, whose reactor is lumped with the
 // supply), its currents to be multiplied by `waveform_scale`.
 struct SolvedCircuit {
   std::vector<std::complex<double>> current;  // orders 0..max_order, EMF frame
@@ -54,7 +54,10 @@ BridgeParameters OnEmfBase(BridgeParameters p, double emf);
 
 class BridgeTable {
  public:
-  explicit BridgeTable(int max_order) : max_order_(max_order) {}
+  // Nodes keep their waveforms only with `keep_waveforms` (a node's period is 46 kB, and a
+  // large plant solves thousands of nodes).
+  BridgeTable(int max_order, bool keep_waveforms)
+      : max_order_(max_order), keep_waveforms_(keep_waveforms) {}
 
   // The interpolated solution of `p` (bus voltage base) on EMF `emf`, or nothing where the table
   // does not serve the point (no power drawn, no supply resistance, a single-phase circuit, a
@@ -122,6 +125,7 @@ class BridgeTable {
   std::optional<Blend> BlendAt(const Kind& kind, const Point& at, int level);
 
   int max_order_;
+  bool keep_waveforms_;
   mutable std::mutex mutex_;
   std::map<std::pair<Kind, Index>, std::unique_ptr<Node>> nodes_;  // nodes stay put
 };

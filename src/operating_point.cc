@@ -82,7 +82,7 @@ OperatingPoint SolveOperatingPoint(const Plant& plant, const Network& net,
   }
   const std::vector<Complex> fixed = FixedPowerDrawn(plant, net);
   // Kept across rounds: exact solutions and interpolation nodes stay valid as the supplies move.
-  BridgeCache cache(max_order);
+  BridgeCache cache(max_order, options.keep_waveforms);
   const auto exact = [&](std::size_t n) {
     return plant.drives[bridges[n]].name == options.exact_drive;
   };

@@ -105,7 +105,7 @@ TEST_CASE("Interpolated spectra stay within 0.2 percentage points of direct solv
   constexpr int kMaxOrder = 50;
   for (const FrontEndCase& c : FrontEnds()) {
     INFO(c.name);
-    BridgeTable table(kMaxOrder);
+    BridgeTable table(kMaxOrder, false);
     std::mt19937_64 rng(20261202);
     int served = 0;
     double worst = 0.0;
@@ -140,7 +140,7 @@ TEST_CASE("Interpolated results do not depend on the order the nodes were solved
     points.push_back(RandomPoint(rng, CapacitorBridge(0.03, 0.0), emf));
     emfs.push_back(emf);
   }
-  BridgeTable forward(50), backward(50);
+  BridgeTable forward(50, false), backward(50, false);
   std::vector<std::optional<SolvedCircuit>> a(points.size()), b(points.size());
   for (std::size_t n = 0; n < points.size(); ++n) a[n] = forward.Interpolate(points[n], emfs[n]);
   for (std::size_t n = points.size(); n-- > 0;) b[n] = backward.Interpolate(points[n], emfs[n]);
@@ -152,7 +152,7 @@ TEST_CASE("Interpolated results do not depend on the order the nodes were solved
 
 TEST_CASE("Single-phase units and very stiff supplies are left to direct solves",
           "[bridge_table]") {
-  BridgeTable table(25);
+  BridgeTable table(25, false);
   BridgeParameters single = CapacitorBridge(0.0, 0.0);
   single.circuit = BridgeCircuit::kSinglePhase;
   single.r_supply = 0.004;
@@ -253,7 +253,7 @@ TEST_CASE("A group named for an exact solve is simulated on its own in an interp
   const Complex v1 = op.flow.voltage[bus];
   const Complex i1 = op.drives[kGroup].current[1];
   const BusSupply supply{net.nominal_v(bus), net.frequency_hz(), v1 + z_sc * i1, z_sc};
-  BridgeCache direct(plant.study.max_order);
+  BridgeCache direct(plant.study.max_order, false);
   const GroupSpectrum reference = ComputeGroupSpectrum(plant.drives[kGroup], supply, direct, false);
   for (std::size_t h = 1; h < reference.current.size(); ++h) {
     INFO("order " << h);
