@@ -353,59 +353,73 @@ PeriodicState FindPeriodicState(Simulator& sim, PeriodicState x, int steps_per_s
   throw SolveError("bridge simulation: no periodic steady state after 200 shooting steps");
 }
 
-// Fourier series of a piecewise-linear interpolant through (theta_n, x_n) over one period:
-// rms cosine phasors X_h = 1/(sqrt(2) pi) * integral x(theta) exp(-j h theta) dtheta, each segment
-// integrated exactly. Switching instants are among the points, so the kinks of the waveform are
-// resolved exactly rather than smeared over a grid step. Summed by parts, so that each point
-// enters once per order, through its jump in value and its change of slope.
-std::vector<Complex> FourierSeries(const std::vector<double>& theta, const std::vector<double>& x,
-                                   int max_order) {
-  // Over a segment [n, n+1] of width w and slope s, with a = -j h:
+// Fourier series of one period given by its first symmetry segment, as sampled by SampleCycle:
+// points at offsets t_n from the segment's start (0 .. 2 pi / segments) with each phase's line
+// current there; segment k of the period carries phase k % phases of the first with the sign
+// (-1)^k. The result is the rms cosine phasors X_h = 1/(sqrt(2) pi) * integral x(theta)
+// exp(-j h theta) dtheta of phase a's piecewise-linear interpolant through those points, each
+// piece integrated exactly. Switching instants are among the points, so the kinks of the
+// waveform are resolved exactly rather than smeared over a grid step. Summed by parts, so that
+// each point enters once per order, through its jump in value and its change of slope.
+std::vector<Complex> FourierSeries(const std::vector<double>& offset,
+                                   const std::vector<std::array<double, 3>>& current,
+                                   int segments, int phases, double theta0, int max_order) {
+  // Over a piece [n, n+1] of width w and slope s, with a = -j h:
   //   integral = (x_{n+1} e_{n+1} - x_n e_n) / a - s (e_{n+1} - e_n) / a^2,
-  // so point k gathers alpha_k = x_k (end of the segment before) - x_k (start of the one after)
-  // and beta_k = s (segment before) - s (segment after); zero-width segments are left out.
-  const std::size_t points = theta.size();
-  std::vector<double> alpha(points, 0.0), beta(points, 0.0);
+  // so point k gathers alpha_k = x_k (end of the piece before) - x_k (start of the one after)
+  // and beta_k = s (piece before) - s (piece after); zero-width pieces are left out.
+  const std::size_t points = offset.size();
+  std::vector<std::array<double, 3>> alpha(points), beta(points);  // zeros
   for (std::size_t n = 0; n + 1 < points; ++n) {
-    const double width = theta[n + 1] - theta[n];
+    const double width = offset[n + 1] - offset[n];
     if (width <= 0.0) continue;
-    const double slope = (x[n + 1] - x[n]) / width;
-    alpha[n + 1] += x[n + 1];
-    alpha[n] -= x[n];
-    beta[n + 1] += slope;
-    beta[n] -= slope;
+    for (int m = 0; m < 3; ++m) {
+      const double slope = (current[n + 1][m] - current[n][m]) / width;
+      alpha[n + 1][m] += current[n + 1][m];
+      alpha[n][m] -= current[n][m];
+      beta[n + 1][m] += slope;
+      beta[n][m] -= slope;
+    }
   }
-  // Every circuit here repeats with the opposite sign after half a period (the symmetry its
-  // periodic state is found with, section 4 of docs/bridge-model.md), so the even orders vanish
-  // and only the odd ones are summed. exp(-j h theta_n) comes by repeated products with
-  // exp(-2j theta_n), real and imaginary parts apart so that the loop vectorises (a std::complex
-  // product checks for infinities and does not).
+  // Segment k + segments / 2 is segment k shifted by half a period with the opposite sign (the
+  // symmetry the periodic state is found with, section 4 of docs/bridge-model.md): the even
+  // orders vanish and each odd one is twice the sum over the first half period. exp(-j h t_n)
+  // comes by repeated products with exp(-2j t_n), real and imaginary parts apart so that the
+  // loop vectorises (a std::complex product checks for infinities and does not).
   std::vector<Complex> out(static_cast<std::size_t>(max_order) + 1);
   std::vector<double> step_re(points), step_im(points), re(points), im(points);
   for (std::size_t n = 0; n < points; ++n) {
-    // exp(+j theta_n), one step before order 1; exp(-2j theta_n) from it by the double-angle
-    // formulas: one sine and one cosine a point, the costliest part of a short simulation.
-    const double c = std::cos(theta[n]), s = std::sin(theta[n]);
+    // exp(+j t_n), one step before order 1; exp(-2j t_n) from it by the double-angle formulas.
+    const double c = std::cos(offset[n]), s = std::sin(offset[n]);
     re[n] = c;
     im[n] = s;
     step_re[n] = (c - s) * (c + s);
     step_im[n] = -2.0 * c * s;
   }
+  const double segment_width = 2.0 * kPi / segments;
   for (int h = 1; h <= max_order; h += 2) {
-    double a_re = 0.0, a_im = 0.0, b_re = 0.0, b_im = 0.0;
+    std::array<double, 3> a_re = {}, a_im = {}, b_re = {}, b_im = {};
     for (std::size_t n = 0; n < points; ++n) {
       const double next_re = re[n] * step_re[n] - im[n] * step_im[n];
       im[n] = re[n] * step_im[n] + im[n] * step_re[n];
       re[n] = next_re;
-      a_re += alpha[n] * re[n];
-      a_im += alpha[n] * im[n];
-      b_re += beta[n] * re[n];
-      b_im += beta[n] * im[n];
+      for (int m = 0; m < 3; ++m) {
+        a_re[m] += alpha[n][m] * re[n];
+        a_im[m] += alpha[n][m] * im[n];
+        b_re[m] += beta[n][m] * re[n];
+        b_im[m] += beta[n][m] * im[n];
+      }
     }
-    // 1/a = j/h and 1/a^2 = -1/h^2: integral = (j/h) A + (1/h^2) B.
-    const Complex sum = Complex{0.0, 1.0 / h} * Complex{a_re, a_im} +
-                        Complex{b_re, b_im} / (static_cast<double>(h) * h);
-    out[h] = sum / (std::sqrt(2.0) * kPi);
+    Complex sum;
+    for (int k = 0; k < segments / 2; ++k) {
+      const int m = k % phases;
+      // 1/a = j/h and 1/a^2 = -1/h^2: a segment's integral = (j/h) A + (1/h^2) B.
+      const Complex segment = Complex{0.0, 1.0 / h} * Complex{a_re[m], a_im[m]} +
+                              Complex{b_re[m], b_im[m]} / (static_cast<double>(h) * h);
+      const double sign = k % 2 == 0 ? 1.0 : -1.0;
+      sum += sign * std::polar(1.0, -h * (theta0 + k * segment_width)) * segment;
+    }
+    out[h] = 2.0 * sum / (std::sqrt(2.0) * kPi);
   }
   return out;
 }
@@ -415,7 +429,7 @@ std::vector<Complex> FourierSeries(const std::vector<double>& theta, const std::
 // -a, b, -c of the first (the relabelling of SixPulseCircuit::Rotate), the single-phase bridge's
 // line current over two half periods i, -i; the DC voltage repeats.
 BridgeSolution SampleCycle(const BridgeParameters& p, Simulator& sim, PeriodicState x,
-                           double theta0) {
+                           double theta0, int max_order) {
   const bool single_phase = p.circuit == BridgeCircuit::kSinglePhase;
   const int phases = single_phase ? 1 : 3;
   const int segments = single_phase ? 2 : 6;
@@ -475,11 +489,6 @@ BridgeSolution SampleCycle(const BridgeParameters& p, Simulator& sim, PeriodicSt
   sim.Run(x.z, x.topology, steps, on_sample, on_switch);
 
   BridgeWaveform& w = s.waveform;
-  const std::size_t points = 1 + segments * (seg.size() - 1);
-  s.samples_theta.reserve(points);
-  s.samples_current.reserve(points);
-  s.samples_theta = {theta0};
-  s.samples_current = {seg.front().i[0]};
   for (std::vector<double>* v : {&w.theta, &w.line_current, &w.terminal_voltage, &w.dc_voltage}) {
     v->reserve(kSamplesPerCycle);
   }
@@ -489,8 +498,6 @@ BridgeSolution SampleCycle(const BridgeParameters& p, Simulator& sim, PeriodicSt
     const double start = theta0 + k * (2.0 * kPi / segments);
     for (std::size_t n = 1; n < seg.size(); ++n) {
       const Point& q = seg[n];
-      s.samples_theta.push_back(start + q.offset);
-      s.samples_current.push_back(sign * q.i[m]);
       if (!q.grid) continue;
       w.theta.push_back(start + q.offset);
       w.line_current.push_back(sign * q.i[m]);
@@ -504,6 +511,14 @@ BridgeSolution SampleCycle(const BridgeParameters& p, Simulator& sim, PeriodicSt
   s.dc_voltage = dc / steps;
   s.conduction_deg = 180.0 * conducting * (segments / phases) / kSamplesPerCycle;
   s.overlap_deg = 360.0 * overlapping * segments / kSamplesPerCycle / 6.0;
+  std::vector<double> offset(seg.size());
+  std::vector<std::array<double, 3>> phase_currents(seg.size());
+  for (std::size_t n = 0; n < seg.size(); ++n) {
+    offset[n] = seg[n].offset;
+    phase_currents[n] = seg[n].i;
+  }
+  s.current = FourierSeries(offset, phase_currents, segments, phases, theta0, max_order);
+  s.pattern_points = 1 + segments * (seg.size() - 1);
   return s;
 }
 
@@ -528,7 +543,7 @@ BridgeSolution SegmentPower(const BridgeParameters& p, Simulator& sim, PeriodicS
 // Steady state for one value of the free parameter (load conductance or DC current): with
 // `sampled`, the full period's samples and figures; otherwise the power alone.
 BridgeSolution Evaluate(const BridgeParameters& p, double parameter, PeriodicState& warm,
-                        ShootingJacobian& jacobian, bool sampled) {
+                        ShootingJacobian& jacobian, bool sampled, int max_order) {
   // The power alone, for a secant step, needs the state to less than its 1e-7 tolerance; the
   // sampled period, to round-off.
   const double tolerance = sampled ? 1e-11 : 1e-9;
@@ -538,7 +553,7 @@ BridgeSolution Evaluate(const BridgeParameters& p, double parameter, PeriodicSta
     Simulator sim(circuit, dt);
     warm = FindPeriodicState(sim, warm, kSamplesPerCycle / 2, 0.0, SinglePhaseCircuit::Rotate,
                              jacobian, tolerance);
-    return sampled ? SampleCycle(p, sim, warm, 0.0) : SegmentPower(p, sim, warm, kSamplesPerCycle / 2);
+    return sampled ? SampleCycle(p, sim, warm, 0.0, max_order) : SegmentPower(p, sim, warm, kSamplesPerCycle / 2);
   }
   SixPulseCircuit circuit(p, parameter);
   Simulator sim(circuit, dt);
@@ -556,17 +571,17 @@ BridgeSolution Evaluate(const BridgeParameters& p, double parameter, PeriodicSta
   SetTheta(warm.z, theta0);
   warm = FindPeriodicState(sim, warm, kSamplesPerCycle / 6, theta0, SixPulseCircuit::Rotate,
                            jacobian, tolerance);
-  return sampled ? SampleCycle(p, sim, warm, theta0) : SegmentPower(p, sim, warm, kSamplesPerCycle / 6);
+  return sampled ? SampleCycle(p, sim, warm, theta0, max_order) : SegmentPower(p, sim, warm, kSamplesPerCycle / 6);
 }
 
 // The free parameter that reaches the requested power: the DC load conductance (P ~ G V_dc^2,
 // V_dc ~ 1.35 V) or the DC current (P ~ 1.35 V cos(alpha) I_d), by secant steps.
-BridgeSolution ReachPower(const BridgeParameters& p, const BridgeStart* from) {
+BridgeSolution ReachPower(const BridgeParameters& p, int max_order, const BridgeStart* from) {
   const bool stiff = p.circuit == BridgeCircuit::kSixPulseStiff;
   PeriodicState warm;
   ShootingJacobian jacobian;
   if (!stiff) warm.z[kVdc] = std::sqrt(2.0);  // open bridge, DC link at the line-to-line peak
-  if (p.power <= 0.0) return Evaluate(p, stiff ? 0.0 : 1e-9, warm, jacobian, true);
+  if (p.power <= 0.0) return Evaluate(p, stiff ? 0.0 : 1e-9, warm, jacobian, true, max_order);
   double x0 = stiff ? p.power / (1.35 * std::cos(p.firing_deg * kPi / 180.0))
                     : p.power / (1.35 * 1.35);
   // The power grows about as the level to the power `elasticity` (1 at first: P ~ G V_dc^2 or
@@ -580,14 +595,14 @@ BridgeSolution ReachPower(const BridgeParameters& p, const BridgeStart* from) {
     std::copy(from->jacobian.begin(), from->jacobian.end(), jacobian.matrix.data());
     jacobian.valid = from->has_jacobian;
   }
-  double p0 = Evaluate(p, x0, warm, jacobian, false).power;
+  double p0 = Evaluate(p, x0, warm, jacobian, false, max_order).power;
   double x1 = x0 * std::pow(p.power / std::max(p0, 1e-12), 1.0 / elasticity);
   PeriodicState at_x0 = warm;
   for (int it = 0; it < 40; ++it) {
-    const double p1 = Evaluate(p, x1, warm, jacobian, false).power;
+    const double p1 = Evaluate(p, x1, warm, jacobian, false, max_order).power;
     // The period is sampled once, at the level found (its steady state is already in `warm`).
     if (std::abs(p1 - p.power) <= 1e-9 + 1e-7 * p.power) {
-      BridgeSolution s = Evaluate(p, x1, warm, jacobian, true);
+      BridgeSolution s = Evaluate(p, x1, warm, jacobian, true, max_order);
       s.start = {x1, p1, {warm.z[0], warm.z[1], warm.z[2], warm.z[3]}, warm.topology};
       std::copy(jacobian.matrix.data(), jacobian.matrix.data() + 16, s.start.jacobian.begin());
       s.start.has_jacobian = jacobian.valid;
@@ -619,9 +634,7 @@ BridgeSolution ReachPower(const BridgeParameters& p, const BridgeStart* from) {
 }  // namespace
 
 BridgeSolution SolveBridge(const BridgeParameters& p, int max_order, const BridgeStart* from) {
-  BridgeSolution s = ReachPower(p, from);
-  s.current = FourierSeries(s.samples_theta, s.samples_current, max_order);
-  return s;
+  return ReachPower(p, max_order, from);
 }
 
 }  // namespace overtone::internal

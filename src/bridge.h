@@ -61,10 +61,9 @@ struct BridgeSolution {
   double overlap_deg = 0.0;      // per commutation, stiff circuits
   double power = 0.0;            // terminal input power reached
   BridgeWaveform waveform;
-  // The line current at the grid points and the switching instants of one period (rad, current
-  // unit): the points of the piecewise-linear interpolant whose Fourier series is `current`.
-  std::vector<double> samples_theta;
-  std::vector<double> samples_current;
+  // Points of the sampled period, the grid and the switching instants: a change between two
+  // neighbouring circuits tells that a pulse split, merged or overlapped between them.
+  std::size_t pattern_points = 0;
   BridgeStart start;
 };
 

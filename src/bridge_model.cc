@@ -131,9 +131,6 @@ const BridgeSolution& BridgeCache::SolveExactly(const BridgeParameters& p,
   // Solved outside the lock; two threads meeting the same new circuit both solve it, with the
   // same result, and the first one stored is kept.
   BridgeSolution solution = SolveBridge(p, max_order_, from);
-  // Only the spectrum and figures are looked at again: the samples go, and the waveform unless kept.
-  solution.samples_theta = {};
-  solution.samples_current = {};
   if (!keep_waveforms_) solution.waveform = {};
   std::lock_guard lock(mutex_);
   return solutions_.emplace(key, std::move(solution)).first->second;

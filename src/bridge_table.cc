@@ -146,7 +146,7 @@ const BridgeTable::Node& BridgeTable::Solved(const Kind& kind, Index index) {
   for (std::size_t h = 0; h < s.current.size(); ++h) {
     node->relative[h] = s.current[h] * std::polar(1.0 / m1, -static_cast<double>(h) * a1);
   }
-  node->pattern = s.samples_theta.size();
+  node->pattern = s.pattern_points;
   node->start = s.start;
   node->dc_voltage = s.dc_voltage;
   node->peak_current = s.peak_current;
