@@ -1,6 +1,9 @@
 // app/main.cc — the overtone command line: parse arguments, run one command, map errors to exits.
 #include <CLI/CLI.hpp>
 #include <iostream>
+#ifdef __GLIBC__
+#include <malloc.h>
+#endif
 
 #include "commands.h"
 #include "overtone/errors.h"
@@ -19,6 +22,14 @@ bool overtone::app::WriteJson(const std::string& path,
 }
 
 int main(int argc, char** argv) {
+#ifdef __GLIBC__
+  // A study allocates and frees large blocks phase after phase. Handing them back to the system
+  // and faulting them in again costs more than keeping them: about 5 % of a 10,000-bus study on
+  // a virtual machine, where a page fault takes microseconds. 32 MiB is glibc's largest
+  // mmap threshold.
+  mallopt(M_MMAP_THRESHOLD, 32 << 20);
+  mallopt(M_TRIM_THRESHOLD, 1 << 30);
+#endif
   CLI::App app{
       "overtone: harmonic studies of industrial plants (a screening tool; see the "
       "cautions in every report)"};

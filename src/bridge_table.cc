@@ -89,6 +89,13 @@ BridgeParameters OnEmfBase(BridgeParameters p, double emf) {
   return p;
 }
 
+BridgeTable::BridgeTable(int max_order, bool keep_waveforms)
+    : max_order_(max_order), keep_waveforms_(keep_waveforms) {
+  for (int h = 1; h <= max_order; h += 2) {
+    if (h % 3 != 0) carried_.push_back(static_cast<std::size_t>(h));
+  }
+}
+
 int BridgeTable::solved_nodes() const {
   std::lock_guard lock(mutex_);
   return static_cast<int>(nodes_.size());
@@ -106,12 +113,19 @@ const BridgeTable::Node& BridgeTable::Solved(const Kind& kind, Index index) {
     if (!slot) slot = std::make_unique<Node>();
     node = slot.get();
   }
+  if (node->ready.load(std::memory_order_acquire)) return *node;  // the common case, no lock
   // One thread solves a node while any other needing it waits: the node's numbers depend only
   // on its key, never on which thread got there first.
   std::lock_guard lock(node->mutex);
   if (node->done) return *node;
   node->done = true;
   node->failed = true;  // until its solution is in place, whatever escapes below
+  SolveNode(kind, index, *node);
+  node->ready.store(true, std::memory_order_release);
+  return *node;
+}
+
+void BridgeTable::SolveNode(const Kind& kind, const Index& index, Node& node) {
   BridgeParameters p;
   p.circuit = static_cast<BridgeCircuit>(kind[0]);
   p.thyristor = kind[1] != 0.0;
@@ -138,23 +152,22 @@ const BridgeTable::Node& BridgeTable::Solved(const Kind& kind, Index index) {
   try {
     s = SolveBridge(p, max_order_, from);
   } catch (const SolveError&) {  // e.g. a node beyond what the supply can deliver
-    return *node;
+    return;
   }
-  node->fundamental = s.current[1];
+  node.fundamental = s.current[1];
   const double a1 = std::arg(s.current[1]), m1 = std::abs(s.current[1]);
-  node->relative.resize(s.current.size());
+  node.relative.resize(s.current.size());
   for (std::size_t h = 0; h < s.current.size(); ++h) {
-    node->relative[h] = s.current[h] * std::polar(1.0 / m1, -static_cast<double>(h) * a1);
+    node.relative[h] = s.current[h] * std::polar(1.0 / m1, -static_cast<double>(h) * a1);
   }
-  node->pattern = s.pattern_points;
-  node->start = s.start;
-  node->dc_voltage = s.dc_voltage;
-  node->peak_current = s.peak_current;
-  node->conduction_deg = s.conduction_deg;
-  node->overlap_deg = s.overlap_deg;
-  if (keep_waveforms_) node->waveform = std::move(s.waveform);
-  node->failed = false;
-  return *node;
+  node.pattern = s.pattern_points;
+  node.start = s.start;
+  node.dc_voltage = s.dc_voltage;
+  node.peak_current = s.peak_current;
+  node.conduction_deg = s.conduction_deg;
+  node.overlap_deg = s.overlap_deg;
+  if (keep_waveforms_) node.waveform = std::move(s.waveform);
+  node.failed = false;
 }
 
 std::optional<BridgeTable::Blend> BridgeTable::BlendAt(const Kind& kind, const Point& at,
@@ -188,7 +201,7 @@ std::optional<BridgeTable::Blend> BridgeTable::BlendAt(const Kind& kind, const P
         const double du = su.check[i] * sv.weight[j] * sw.weight[k];
         const double dv = su.weight[i] * sv.check[j] * sw.weight[k];
         const double dw = su.weight[i] * sv.weight[j] * sw.check[k];
-        for (std::size_t h = 0; h < orders; ++h) {
+        for (const std::size_t h : carried_) {
           b.relative[h] += w * n.relative[h];
           bend_u[h] += du * n.relative[h];
           bend_v[h] += dv * n.relative[h];
@@ -203,7 +216,8 @@ std::optional<BridgeTable::Blend> BridgeTable::BlendAt(const Kind& kind, const P
       }
     }
   }
-  for (std::size_t h = 2; h < orders; ++h) {
+  for (const std::size_t h : carried_) {
+    if (h < 2) continue;
     if (std::max({std::abs(bend_u[h]), std::abs(bend_v[h]), std::abs(bend_w[h])}) > kKinkLimit) {
       return std::nullopt;
     }

@@ -22,6 +22,7 @@
 #define OVERTONE_INTERNAL_BRIDGE_TABLE_H_
 
 #include <array>
+#include <atomic>
 #include <complex>
 #include <map>
 #include <memory>
@@ -56,8 +57,7 @@ class BridgeTable {
  public:
   // Nodes keep their waveforms only with `keep_waveforms` (a node's period is 46 kB, and a
   // large plant solves thousands of nodes).
-  BridgeTable(int max_order, bool keep_waveforms)
-      : max_order_(max_order), keep_waveforms_(keep_waveforms) {}
+  BridgeTable(int max_order, bool keep_waveforms);
 
   // The interpolated solution of `p` (bus voltage base) on EMF `emf`, or nothing where the table
   // does not serve the point (no power drawn, no supply resistance, a single-phase circuit, a
@@ -87,7 +87,8 @@ class BridgeTable {
   using Index = std::array<int, 4>;    // lattice level (0 coarse), u, v, w
   struct Node {
     std::mutex mutex;
-    bool done = false;
+    bool done = false;                // a thread took it on (under `mutex`)
+    std::atomic<bool> ready = false;  // its numbers are in place: read without the lock
     bool failed = false;
     std::complex<double> fundamental;
     std::vector<std::complex<double>> relative;  // I_h exp(-j h arg I_1) / |I_1|, orders 0..
@@ -121,11 +122,17 @@ class BridgeTable {
   static std::optional<Located> Locate(const BridgeParameters& p, double emf);
   // The node at `index`, solved on first use.
   const Node& Solved(const Kind& kind, Index index);
+  // Fills `node` with the solution at `index`; leaves it failed where that cannot be solved.
+  void SolveNode(const Kind& kind, const Index& index, Node& node);
   // Nothing where a node fails or the stencil is not trusted.
   std::optional<Blend> BlendAt(const Kind& kind, const Point& at, int level);
 
   int max_order_;
   bool keep_waveforms_;
+  // The orders a balanced three-phase bridge draws: odd and not triplen (the even orders vanish by
+  // the half-period symmetry, the triplens hold round-off). Only these are blended; the others
+  // of an interpolated solution are zero.
+  std::vector<std::size_t> carried_;
   mutable std::mutex mutex_;
   std::map<std::pair<Kind, Index>, std::unique_ptr<Node>> nodes_;  // nodes stay put
 };
