@@ -96,6 +96,14 @@ BridgeTable::BridgeTable(int max_order, bool keep_waveforms)
   }
 }
 
+std::size_t BridgeTable::KeyHash::operator()(const std::pair<Kind, Index>& key) const {
+  std::size_t h = 0;
+  const auto mix = [&h](std::size_t v) { h ^= v + 0x9e3779b97f4a7c15ULL + (h << 6) + (h >> 2); };
+  for (const double k : key.first) mix(std::hash<double>{}(k));
+  for (const int i : key.second) mix(std::hash<int>{}(i));
+  return h;
+}
+
 int BridgeTable::solved_nodes() const {
   std::lock_guard lock(mutex_);
   return static_cast<int>(nodes_.size());

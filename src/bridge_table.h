@@ -24,10 +24,10 @@
 #include <array>
 #include <atomic>
 #include <complex>
-#include <map>
 #include <memory>
 #include <mutex>
 #include <optional>
+#include <unordered_map>
 #include <vector>
 
 #include "bridge.h"
@@ -134,7 +134,10 @@ class BridgeTable {
   // of an interpolated solution are zero.
   std::vector<std::size_t> carried_;
   mutable std::mutex mutex_;
-  std::map<std::pair<Kind, Index>, std::unique_ptr<Node>> nodes_;  // nodes stay put
+  struct KeyHash {
+    std::size_t operator()(const std::pair<Kind, Index>& key) const;
+  };
+  std::unordered_map<std::pair<Kind, Index>, std::unique_ptr<Node>, KeyHash> nodes_;  // nodes stay put
 };
 
 }  // namespace overtone::internal
