@@ -136,15 +136,17 @@ const BridgeSolution& BridgeCache::SolveExactly(const BridgeParameters& p,
   return solutions_.emplace(key, std::move(solution)).first->second;
 }
 
-SolvedCircuit BridgeCache::Solve(const BridgeParameters& p, double emf, bool exact) {
+SolvedCircuit BridgeCache::Solve(const BridgeParameters& p, double emf, bool exact,
+                                 const BridgeStart* previous) {
   if (interpolate_ && !exact) {
     if (std::optional<SolvedCircuit> s = table_.Interpolate(p, emf)) return *std::move(s);
   }
-  // With the table in use, a direct solve starts from its nearest node (fewer iterations).
-  const BridgeStart* from = interpolate_ ? table_.StartNear(p, emf) : nullptr;
+  // A direct solve starts from the circuit's last solution, or with the table in use from its
+  // nearest node (fewer iterations either way).
+  const BridgeStart* from = previous ? previous : interpolate_ ? table_.StartNear(p, emf) : nullptr;
   const BridgeSolution& s = SolveExactly(OnEmfBase(p, emf), from);
   return {s.current, s.power, s.dc_voltage, s.peak_current, s.conduction_deg, s.overlap_deg,
-          keep_waveforms_ ? &s.waveform : nullptr, 1.0, false};
+          keep_waveforms_ ? &s.waveform : nullptr, 1.0, false, &s.start};
 }
 
 double DefaultDcCapacitance(const Drive& d, double nominal_v) {
@@ -161,7 +163,7 @@ std::vector<BridgeParameters> GroupCircuits(const Drive& drive, const BusSupply&
 }
 
 GroupSpectrum ComputeGroupSpectrum(const Drive& d, const BusSupply& bus, BridgeCache& cache,
-                                   bool exact) {
+                                   bool exact, const std::vector<const BridgeStart*>& previous) {
   const std::vector<CircuitPlan> plans = PlanCircuits(d, bus);
   const int max_order = cache.max_order();
   const double v_emf = std::abs(bus.emf) * bus.nominal_v;  // circuit voltage unit, V line-to-line
@@ -171,9 +173,11 @@ GroupSpectrum ComputeGroupSpectrum(const Drive& d, const BusSupply& bus, BridgeC
   const double base_amps = kBaseVa / (std::sqrt(3.0) * bus.nominal_v);
   for (std::size_t n = 0; n < plans.size(); ++n) {
     const CircuitPlan& c = plans[n];
-    const SolvedCircuit s = cache.Solve(c.parameters, std::abs(bus.emf), exact);
+    const SolvedCircuit s = cache.Solve(c.parameters, std::abs(bus.emf), exact,
+                                        n < previous.size() ? previous[n] : nullptr);
     const double amps_per_unit = c.rated_va / v_emf;  // circuit current unit in amperes
     out.interpolated |= s.interpolated;
+    out.starts.push_back(s.start);
     for (int h = 1; h <= max_order; ++h) {
       Complex i = s.current[h] * amps_per_unit;
       if (c.parameters.circuit == BridgeCircuit::kSinglePhase) {
@@ -199,9 +203,11 @@ GroupSpectrum ComputeGroupSpectrum(const Drive& d, const BusSupply& bus, BridgeC
   return out;
 }
 
-BridgeWaveform GroupWaveform(const Drive& d, const BusSupply& bus, BridgeCache& cache, bool exact) {
+BridgeWaveform GroupWaveform(const Drive& d, const BusSupply& bus, BridgeCache& cache, bool exact,
+                             const std::vector<const BridgeStart*>& previous) {
   const CircuitPlan c = PlanCircuits(d, bus).front();
-  const SolvedCircuit s = cache.Solve(c.parameters, std::abs(bus.emf), exact);
+  const SolvedCircuit s = cache.Solve(c.parameters, std::abs(bus.emf), exact,
+                                      previous.empty() ? nullptr : previous.front());
   if (s.waveform == nullptr) throw std::logic_error("GroupWaveform needs a cache keeping waveforms");
   const double v_emf = std::abs(bus.emf) * bus.nominal_v;
   const double amps = s.waveform_scale * c.rated_va / v_emf;

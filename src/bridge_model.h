@@ -34,6 +34,9 @@ struct GroupSpectrum {
   double conduction_deg = 0.0;
   double overlap_deg = 0.0;
   bool interpolated = false;  // from the interpolation nodes rather than its own simulation
+  // Per circuit of the group, where its own simulation ended (null when interpolated): passed
+  // back in the next load-flow round, it starts there.
+  std::vector<const BridgeStart*> starts;
   // One period of a representative unit circuit, in amperes and volts, study frame angles
   // (GroupWaveform; left empty by ComputeGroupSpectrum).
   BridgeWaveform waveform;
@@ -64,8 +67,10 @@ class BridgeCache {
   Key KeyOf(const BridgeParameters& p) const;
   void set_interpolate(bool on) { interpolate_ = on; }
   // `p` on the bus voltage base, on an EMF of `emf` per unit of the bus voltage; `exact` asks
-  // for its own simulation even with interpolation on.
-  SolvedCircuit Solve(const BridgeParameters& p, double emf, bool exact);
+  // for its own simulation even with interpolation on. A simulation starts from `previous` (the
+  // same circuit's last solution) when given, else from the table's nearest node.
+  SolvedCircuit Solve(const BridgeParameters& p, double emf, bool exact,
+                      const BridgeStart* previous = nullptr);
   int max_order() const { return max_order_; }
   const BridgeTable& table() const { return table_; }
 
@@ -87,16 +92,17 @@ class BridgeCache {
 std::vector<BridgeParameters> GroupCircuits(const Drive& drive, const BusSupply& supply);
 
 // Simulates the group's front end against `supply` (with `exact`, by its own simulation even
-// where the cache interpolates). Throws SolveError when the operating point cannot be reached,
+// where the cache interpolates), its circuits starting from `previous` (GroupSpectrum::starts of
+// the last round) where given. Throws SolveError when the operating point cannot be reached,
 // InputError for a combination the model refuses (e.g. firing angle >= 90).
 GroupSpectrum ComputeGroupSpectrum(const Drive& drive, const BusSupply& supply, BridgeCache& cache,
-                                   bool exact);
+                                   bool exact, const std::vector<const BridgeStart*>& previous = {});
 
 // One period of the group's representative unit circuit against `supply`, in amperes and volts,
 // study frame angles: kept apart from the spectrum since only charts and CSV files need it.
 // The cache must keep waveforms.
 BridgeWaveform GroupWaveform(const Drive& drive, const BusSupply& supply, BridgeCache& cache,
-                             bool exact);
+                             bool exact, const std::vector<const BridgeStart*>& previous = {});
 
 }  // namespace overtone::internal
 

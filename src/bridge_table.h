@@ -47,6 +47,9 @@ struct SolvedCircuit {
   const BridgeWaveform* waveform = nullptr;
   double waveform_scale = 1.0;
   bool interpolated = false;
+  // Where its own simulation ended (null when interpolated): the start for the same circuit
+  // after the supply has moved a little.
+  const BridgeStart* start = nullptr;
 };
 
 // `p` on the bus voltage base, with an EMF of `emf` per unit of the bus voltage: the same circuit

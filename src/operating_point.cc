@@ -87,6 +87,8 @@ OperatingPoint SolveOperatingPoint(const Plant& plant, const Network& net,
     return plant.drives[bridges[n]].name == options.exact_drive;
   };
   std::vector<BusSupply> supplies(bridges.size());
+  // Where each group's own simulations ended last round: its next ones start there.
+  std::vector<std::vector<const BridgeStart*>> starts(bridges.size());
   LoadFlowSolver load_flow(net);
   for (int round = 1;; ++round) {
     std::vector<Complex> drawn = fixed;
@@ -105,7 +107,7 @@ OperatingPoint SolveOperatingPoint(const Plant& plant, const Network& net,
     ParallelFor(static_cast<int>(bridges.size()), options.threads,
                 [] { return std::make_unique<int>(0); }, [&](int&, int n) {
                   spectra[n] = ComputeGroupSpectrum(plant.drives[bridges[n]], supplies[n], cache,
-                                                    exact(n));
+                                                    exact(n), starts[n]);
                 });
     double change = 0.0, scale = 0.0;
     for (std::size_t n = 0; n < bridges.size(); ++n) {
@@ -120,13 +122,17 @@ OperatingPoint SolveOperatingPoint(const Plant& plant, const Network& net,
       throw SolveError(fmt::format("the load flow and the bridge model did not agree after {} rounds "
                                    "(last change {:.3g} kVA)", kMaxRounds, change * kBaseVa / 1e3));
     }
+    // The next round starts where this one ended; after the last round `starts` still holds
+    // what that round started from, so that the waveforms below meet its solutions.
+    for (std::size_t n = 0; n < bridges.size(); ++n) starts[n] = op.drives[bridges[n]].bridge->starts;
   }
 
   if (options.keep_waveforms) {  // from the last round's solutions, still in the cache
     ParallelFor(static_cast<int>(bridges.size()), options.threads,
                 [] { return std::make_unique<int>(0); }, [&](int&, int n) {
                   op.drives[bridges[n]].bridge->waveform =
-                      GroupWaveform(plant.drives[bridges[n]], supplies[n], cache, exact(n));
+                      GroupWaveform(plant.drives[bridges[n]], supplies[n], cache, exact(n),
+                                    starts[n]);
                 });
   }
   for (std::size_t k = 0; k < plant.drives.size(); ++k) {
