@@ -5,6 +5,7 @@
 //   overtone_bench study PLANT.yaml JSON   one markdown row: phase seconds, peak memory, and the
 //                                          per-order factor+solve time of both LU paths
 //   overtone_bench scan PLANT.yaml         one markdown row: screening of the present step state
+#include <malloc.h>
 #include <sys/resource.h>
 
 #include <Eigen/SparseCore>
@@ -190,6 +191,9 @@ int Scan(const std::string& plant_path) {
 }  // namespace
 
 int main(int argc, char** argv) {
+  // The memory settings of the command (app/main.cc), so that the phases add up to its time.
+  mallopt(M_MMAP_THRESHOLD, 32 << 20);
+  mallopt(M_TRIM_THRESHOLD, 1 << 30);
   const std::string mode = argc > 1 ? argv[1] : "";
   if (mode == "bridges" && argc == 2) return Bridges();
   try {
