@@ -21,7 +21,7 @@ std::vector<Entry> MapEntries(const YamlNode& map, const std::string& file,
                                                         key.Scalar(), first->KeyWhere().line));
       continue;
     }
-    entries.push_back({std::string(key.Scalar()), key, map.Value(pair), file});
+    entries.push_back({key.Scalar(), key, map.Value(pair), &file});
   }
   return entries;
 }
@@ -34,8 +34,7 @@ std::optional<MappingReader> ReadMapping(const YamlNode& node, const std::string
                        fmt::format("a {} must be a mapping of keys, not {}", noun, ShapeOf(node)));
     return std::nullopt;
   }
-  MappingReader reader(MapEntries(node, file, diagnostics), Locate(node, file), noun, specs,
-                       diagnostics);
+  MappingReader reader(MapEntries(node, file, diagnostics), node, file, noun, specs, diagnostics);
   reader.CheckKeys();
   return reader;
 }

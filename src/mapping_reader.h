@@ -2,6 +2,7 @@
 #ifndef OVERTONE_INTERNAL_MAPPING_READER_H_
 #define OVERTONE_INTERNAL_MAPPING_READER_H_
 
+#include <array>
 #include <cmath>
 #include <optional>
 #include <span>
@@ -20,19 +21,22 @@ namespace overtone::internal {
 
 // MappingReader: reads the keys of one mapping through its key table.
 
-// One key of a mapping, its value, and the file it was written in.
+// One key of a mapping, its value, and the file it was written in. The key's text lives in the
+// YAML tree and the file name in storage that outlives the entry (RawPlant::files), so an entry
+// costs no allocation.
 struct Entry {
-  std::string key;
+  std::string_view key;
   YamlNode key_node;
   YamlNode value;
-  std::string file;
+  const std::string* file;
 
-  SourceLocation KeyWhere() const { return Locate(key_node, file); }
+  SourceLocation KeyWhere() const { return Locate(key_node, *file); }
   // An empty value's place is wherever the parser noticed it was empty; its key's is clearer.
-  SourceLocation ValueWhere() const { return value.IsNull() ? KeyWhere() : Locate(value, file); }
+  SourceLocation ValueWhere() const { return value.IsNull() ? KeyWhere() : Locate(value, *file); }
 };
 
 // The keys of `map` in order; a key written twice is reported and its second value dropped.
+// `file` must outlive the entries.
 std::vector<Entry> MapEntries(const YamlNode& map, const std::string& file,
                               Diagnostics* diagnostics);
 
@@ -40,15 +44,20 @@ std::vector<Entry> MapEntries(const YamlNode& map, const std::string& file,
 class MappingReader {
  public:
   // `noun` names the mapping in messages ("transformer"); its `name`, when readable, is added.
-  MappingReader(std::vector<Entry> entries, SourceLocation where, std::string_view noun,
-                std::span<const KeySpec> specs, Diagnostics* diagnostics)
+  // `node` places the mapping (an undefined node for line 0); `file` must outlive the reader.
+  MappingReader(std::vector<Entry> entries, const YamlNode& node, const std::string& file,
+                std::string_view noun, std::span<const KeySpec> specs, Diagnostics* diagnostics)
       : entries_(std::move(entries)),
-        where_(std::move(where)),
+        node_(node),
+        file_(&file),
         noun_(noun),
         specs_(specs),
         diagnostics_(diagnostics) {}
 
-  const SourceLocation& where() const { return where_; }
+  // Built on request: most mappings never need their place.
+  SourceLocation where() const { return Locate(node_, *file_); }
+  const YamlNode& node() const { return node_; }
+  const std::string& file() const { return *file_; }
   std::string_view noun() const { return noun_; }
   // "transformer `T1`" when the name is readable, else the noun; for messages only.
   std::string title() const {
@@ -58,19 +67,19 @@ class MappingReader {
                : std::string(noun_);
   }
   bool Has(std::string_view key) const { return Find(key) != nullptr; }
-  std::string FileOf(std::string_view key) const {
+  const std::string& FileOf(std::string_view key) const {
     const Entry* entry = Find(key);
-    return entry ? entry->file : where_.file;
+    return entry ? *entry->file : *file_;
   }
 
   // Reports unknown keys (with the nearest known key) and missing required keys.
   void CheckKeys() {
-    std::vector<std::string_view> known;  // table order, each key once
-    for (const KeySpec& spec : specs_) {
-      if (std::ranges::find(known, spec.key) == known.end()) known.push_back(spec.key);
-    }
     for (const Entry& entry : entries_) {
-      if (std::ranges::find(known, entry.key) != known.end()) continue;
+      if (!SpecsOf(entry.key).empty()) continue;
+      std::vector<std::string_view> known;  // table order, each key once
+      for (const KeySpec& spec : specs_) {
+        if (std::ranges::find(known, spec.key) == known.end()) known.push_back(spec.key);
+      }
       std::string hint = DidYouMean(entry.key, known);
       if (hint.empty()) hint = fmt::format("; known keys: {}", JoinNames(known));
       diagnostics_->Error(entry.KeyWhere(),
@@ -78,7 +87,7 @@ class MappingReader {
     }
     for (const KeySpec& spec : specs_) {
       if (spec.need == kRequired && !Has(spec.key)) {
-        diagnostics_->Error(where_, fmt::format("{} is missing `{}`", title(), spec.key));
+        diagnostics_->Error(where(), fmt::format("{} is missing `{}`", title(), spec.key));
       }
     }
   }
@@ -86,11 +95,12 @@ class MappingReader {
   // Reports `message` at the value of `key` (at the mapping when the key is absent).
   void Error(std::string_view key, std::string message) {
     const Entry* entry = Find(key);
-    diagnostics_->Error(entry ? entry->ValueWhere() : where_, std::move(message));
+    diagnostics_->Error(entry ? entry->ValueWhere() : where(), std::move(message));
   }
 
-  // A single non-empty value as written; nothing when absent (or bad, which is reported).
-  std::optional<std::string> Text(std::string_view key) {
+  // A single non-empty value as written (in the YAML tree, which outlives the reader); nothing
+  // when absent (or bad, which is reported).
+  std::optional<std::string_view> Text(std::string_view key) {
     const Entry* entry = Find(key);
     if (!entry) return std::nullopt;
     if (!entry->value.IsScalar()) {
@@ -104,29 +114,30 @@ class MappingReader {
       Error(key, fmt::format("`{}` is empty", key));
       return std::nullopt;
     }
-    return std::string(text);
+    return text;
   }
 
   // A quantity in one of the kinds the table gives this key, checked against that kind's range.
   std::optional<Quantity> QuantityOf(std::string_view key) {
     RequireType(key, ValueType::kQuantity, ValueType::kInteger);
-    const std::optional<std::string> text = Text(key);
+    const std::optional<std::string_view> text = Text(key);
     if (!text) return std::nullopt;
-    std::vector<QuantityKind> kinds;
-    for (const KeySpec* spec : SpecsOf(key)) kinds.push_back(spec->kind);
+    const std::span<const KeySpec> specs = SpecsOf(key);
+    std::array<QuantityKind, kMaxRowsPerKey> kinds{};
+    for (size_t row = 0; row < specs.size(); ++row) kinds[row] = specs[row].kind;
     std::string error;
-    const std::optional<Quantity> quantity =
-        internal::ParseQuantity(*text, kinds, SpecsOf(key).front()->unit, &error);
+    const std::optional<Quantity> quantity = internal::ParseQuantity(
+        *text, std::span(kinds).first(specs.size()), specs.front().unit, &error);
     if (!quantity) {
       Error(key, fmt::format("{}: {}", key, error));
       return std::nullopt;
     }
-    for (const KeySpec* spec : SpecsOf(key)) {
-      if (spec->kind != quantity->kind) continue;
-      const std::string problem = RangeProblem(*spec, quantity->value);
+    for (const KeySpec& spec : specs) {
+      if (spec.kind != quantity->kind) continue;
+      const std::string problem = RangeProblem(spec, quantity->value);
       if (problem.empty()) return quantity;
       Error(key, fmt::format("{} must be {}; got `{}`{}", key, problem, *text,
-                             spec->kind == K::kFraction && quantity->value > 1
+                             spec.kind == K::kFraction && quantity->value > 1
                                  ? " (write a fraction, 0.95, or a percent, 95 %)"
                                  : ""));
     }
@@ -161,13 +172,13 @@ class MappingReader {
 
   template <typename T>
   std::optional<T> Choose(std::string_view key, const Choices<T>& choices) {
-    const std::optional<std::string> text = Text(key);
+    const std::optional<std::string_view> text = Text(key);
     if (!text) return std::nullopt;
-    std::vector<std::string_view> names;
     for (const Choice<T>& choice : choices) {
       if (choice.text == *text) return choice.value;
-      names.push_back(choice.text);
     }
+    std::vector<std::string_view> names;
+    for (const Choice<T>& choice : choices) names.push_back(choice.text);
     Error(key, fmt::format("{} `{}` is not one of {}{}", key, *text, JoinNames(names),
                            DidYouMean(*text, names)));
     return std::nullopt;
@@ -184,7 +195,7 @@ class MappingReader {
     if (const std::optional<int> value = Integer(key)) *out = *value;
   }
   void Read(std::string_view key, std::string* out) {
-    if (std::optional<std::string> value = Text(key)) *out = std::move(*value);
+    if (const std::optional<std::string_view> value = Text(key)) *out = *value;
   }
   template <typename T>
   void Read(std::string_view key, const Choices<T>& choices, T* out) {
@@ -199,30 +210,33 @@ class MappingReader {
 
   // A read that does not match the key table is a bug in this file, not in the input.
   void RequireType(std::string_view key, ValueType type, ValueType other_type) const {
-    const std::vector<const KeySpec*> rows = SpecsOf(key);
-    if (rows.empty() || (rows[0]->type != type && rows[0]->type != other_type)) {
+    const std::span<const KeySpec> rows = SpecsOf(key);
+    if (rows.empty() || (rows[0].type != type && rows[0].type != other_type)) {
       throw std::logic_error(fmt::format("key `{}` read against its table", key));
     }
   }
 
-  std::vector<const KeySpec*> SpecsOf(std::string_view key) const {
-    std::vector<const KeySpec*> rows;
-    for (const KeySpec& spec : specs_) {
-      if (spec.key == key) rows.push_back(&spec);
-    }
-    return rows;
+  // The rows of `key`, adjacent in every table (checked in plant_keys.h); empty when unknown.
+  std::span<const KeySpec> SpecsOf(std::string_view key) const {
+    const auto first = std::ranges::find(specs_, key, &KeySpec::key);
+    auto last = first;
+    while (last != specs_.end() && last->key == key) ++last;
+    return {first, last};
   }
 
   // "" when `value` (stored unit) lies in the spec's range, else "above 0 kvar" and the like.
   static std::string RangeProblem(const KeySpec& spec, double value) {
     const double shown = value / internal::UnitFactor(spec.kind, spec.unit).value_or(1.0);
     const Range& range = spec.range;
-    const std::string unit = spec.unit.empty() ? "" : fmt::format(" {}", spec.unit);
+    const std::string_view space = spec.unit.empty() ? "" : " ";
+    const std::string_view unit = spec.unit;
     if (range.lo_bracket == '(' ? shown <= range.lo : shown < range.lo) {
-      return fmt::format("{} {}{}", range.lo_bracket == '(' ? "above" : "at least", range.lo, unit);
+      return fmt::format("{} {}{}{}", range.lo_bracket == '(' ? "above" : "at least", range.lo,
+                         space, unit);
     }
     if (range.hi_bracket == ')' ? shown >= range.hi : shown > range.hi) {
-      return fmt::format("{} {}{}", range.hi_bracket == ')' ? "below" : "at most", range.hi, unit);
+      return fmt::format("{} {}{}{}", range.hi_bracket == ')' ? "below" : "at most", range.hi,
+                         space, unit);
     }
     return "";
   }
@@ -239,13 +253,15 @@ class MappingReader {
   }
 
   std::vector<Entry> entries_;
-  SourceLocation where_;
+  YamlNode node_;
+  const std::string* file_;
   std::string_view noun_;
   std::span<const KeySpec> specs_;
   Diagnostics* diagnostics_;
 };
 
 // A reader for an element or table row; nothing when `node` is not a mapping (reported).
+// `file` must outlive the reader.
 std::optional<MappingReader> ReadMapping(const YamlNode& node, const std::string& file,
                                          std::string_view noun, std::span<const KeySpec> specs,
                                          Diagnostics* diagnostics);

@@ -6,7 +6,7 @@
 #include <filesystem>
 #include <numeric>
 #include <optional>
-#include <set>
+#include <string_view>
 #include <unordered_map>
 #include <utility>
 #include <vector>
@@ -42,7 +42,7 @@ std::optional<Winding> TakeWinding(std::string_view* code, bool upper) {
   return winding;
 }
 
-std::optional<VectorGroup> ParseVectorGroup(const std::string& code, std::string* error) {
+std::optional<VectorGroup> ParseVectorGroup(std::string_view code, std::string* error) {
   std::string_view rest = code;
   const std::optional<Winding> from = TakeWinding(&rest, true);
   const std::optional<Winding> to = TakeWinding(&rest, false);
@@ -73,7 +73,7 @@ std::optional<VectorGroup> ParseVectorGroup(const std::string& code, std::string
     return std::nullopt;
   }
   VectorGroup group;
-  group.code = code;
+  group.code = std::string(code);
   group.clock = clock;
   group.from_grounded_wye = from->letter == 'Y' && from->neutral;
   group.to_grounded_wye = to->letter == 'Y' && to->neutral;
@@ -95,9 +95,9 @@ class PlantBuilder {
     std::size_t elements = 0;
     for (const std::vector<RawElement>& section : raw.sections) elements += section.size();
     names_.reserve(elements);
-    bus_volts_.reserve(raw.sections[kBuses].size());
+    buses_.reserve(raw.sections[kBuses].size());
     for (const RawElement& bus : raw.sections[kBuses]) {
-      if (!bus.name.empty()) bus_names_.insert(bus.name);
+      if (!bus.name.empty()) buses_.try_emplace(bus.name);
     }
     ReadStudy(raw);
     ReadSection(raw, kSupplies, &plant_.supplies, &PlantBuilder::ReadSupply);
@@ -115,9 +115,17 @@ class PlantBuilder {
   }
 
  private:
+  // The element that took a name; its place is built only for a message.
   struct NameUse {
-    SourceLocation where;
+    YamlNode node;
+    const std::string* file;
     std::string_view noun;
+  };
+
+  // A bus written in the plant; its voltage and place in plant_.buses are known once it is read.
+  struct BusEntry {
+    double volts = 0.0;
+    std::optional<size_t> index;
   };
 
   template <typename T>
@@ -127,7 +135,7 @@ class PlantBuilder {
     out->reserve(raw.sections[section].size());
     for (const RawElement& element : raw.sections[section]) {
       std::optional<MappingReader> reader =
-          ReadMapping(element.node, element.file, info.noun, info.keys, diagnostics_);
+          ReadMapping(element.node, *element.file, info.noun, info.keys, diagnostics_);
       if (reader) {
         out->push_back((this->*read)(*reader));
       } else {
@@ -138,8 +146,10 @@ class PlantBuilder {
 
   void ReadStudy(const RawPlant& raw) {
     StudySettings& study = plant_.study;
-    study.where = raw.study_where.file.empty() ? SourceLocation{file_name_, 0, 0} : raw.study_where;
-    MappingReader r(raw.study, study.where, "study", kStudyKeys, diagnostics_);
+    // Without `study` in any file, messages point at the root file (line 0: no place in it).
+    const std::string* file = raw.study_file ? raw.study_file : &file_name_;
+    MappingReader r(raw.study, raw.study_node, *file, "study", kStudyKeys, diagnostics_);
+    study.where = r.where();
     r.CheckKeys();
     study.name = fs::path(file_name_).stem().string();
     r.Read("name", &study.name);
@@ -153,13 +163,13 @@ class PlantBuilder {
 
   // A built-in profile name, or a profile file (relative to the file naming it) that must exist.
   void ReadLimits(MappingReader& r) {
-    const std::optional<std::string> limits = r.Text("limits");
+    const std::optional<std::string_view> limits = r.Text("limits");
     if (!limits) return;
     if (std::ranges::find(kLimitProfiles, *limits) != std::end(kLimitProfiles)) {
       plant_.study.limits = *limits;
       return;
     }
-    const std::string path = ResolvePath(r.FileOf("limits"), *limits);
+    const std::string path = ResolvePath(r.FileOf("limits"), std::string(*limits));
     std::error_code code;
     if (fs::is_regular_file(path, code)) {
       plant_.study.limits = path;
@@ -172,39 +182,60 @@ class PlantBuilder {
                     *limits, JoinNames(kLimitProfiles), path, DidYouMean(*limits, kLimitProfiles)));
   }
 
-  // The element's name, which must be unique across the whole plant, buses included.
-  std::string ReadName(MappingReader& r) {
-    std::optional<std::string> name = r.Text("name");
+  // The element's name (in the YAML tree), which must be unique across the whole plant, buses
+  // included; empty when unreadable.
+  std::string_view ReadName(MappingReader& r) {
+    const std::optional<std::string_view> name = r.Text("name");
     if (!name) return "";
-    const auto [first, fresh] = names_.try_emplace(*name, NameUse{r.where(), r.noun()});
+    const auto [first, fresh] =
+        names_.try_emplace(*name, NameUse{r.node(), &r.file(), r.noun()});
     if (!fresh) {
-      r.Error("name", fmt::format("name `{}` is already used by the {} at {}", *name,
-                                  first->second.noun, FormatPlace(first->second.where)));
+      const NameUse& use = first->second;
+      r.Error("name", fmt::format("name `{}` is already used by the {} at {}", *name, use.noun,
+                                  FormatPlace(Locate(use.node, *use.file))));
     }
-    return std::move(*name);
+    return *name;
   }
 
   std::string ReadBusName(MappingReader& r, std::string_view key) {
-    std::optional<std::string> bus = r.Text(key);
+    const std::optional<std::string_view> bus = r.Text(key);
     if (!bus) {
       topology_unsure_ = true;
       return "";
     }
-    if (!bus_names_.contains(*bus)) {
-      r.Error(key, fmt::format("unknown bus `{}`{}", *bus, DidYouMean(*bus, bus_names_)));
+    if (!buses_.contains(*bus)) {
+      r.Error(key, fmt::format("unknown bus `{}`{}", *bus, DidYouMean(*bus, SortedBusNames())));
       topology_unsure_ = true;
     }
-    return std::move(*bus);
+    return std::string(*bus);
   }
 
-  double BusVolts(const std::string& bus) const {
-    const auto found = bus_volts_.find(bus);
-    return found == bus_volts_.end() ? 0.0 : found->second;
+  // Every bus name written, sorted: the candidates of a hint, gathered at the first unknown bus.
+  const std::vector<std::string_view>& SortedBusNames() {
+    if (sorted_bus_names_.empty()) {
+      for (const auto& [name, bus] : buses_) {
+        if (!name.empty()) sorted_bus_names_.push_back(name);
+      }
+      std::ranges::sort(sorted_bus_names_);
+    }
+    return sorted_bus_names_;
+  }
+
+  // 0 for a bus not read (yet).
+  double BusVolts(std::string_view bus) const {
+    const auto found = buses_.find(bus);
+    return found == buses_.end() ? 0.0 : found->second.volts;
+  }
+
+  // Where the first bus named `bus` is in plant_.buses; nothing when no such bus was read.
+  std::optional<size_t> BusIndex(std::string_view bus) const {
+    const auto found = buses_.find(bus);
+    return found == buses_.end() ? std::nullopt : found->second.index;
   }
 
   // `kv` of equipment at a bus: the bus kv by default. A rated voltage beyond 0.5..2 times the
   // bus voltage is almost always a V/kV slip, so it is an error.
-  double RatedVolts(MappingReader& r, const std::string& bus) {
+  double RatedVolts(MappingReader& r, std::string_view bus) {
     const double bus_volts = BusVolts(bus);
     const std::optional<double> rated = r.Number("kv");
     if (!rated) return bus_volts;
@@ -219,7 +250,7 @@ class PlantBuilder {
   std::vector<HarmonicEntry> ReadHarmonics(MappingReader& r, std::string_view key) {
     std::vector<HarmonicEntry> table;
     const YamlNode rows = r.List(key);
-    const std::string file = r.FileOf(key);
+    const std::string& file = r.FileOf(key);
     for (const YamlNode& node : rows) {
       std::optional<MappingReader> row =
           ReadMapping(node, file, "harmonic entry", kHarmonicKeys, diagnostics_);
@@ -275,9 +306,11 @@ class PlantBuilder {
   Bus ReadBus(MappingReader& r) {
     Bus bus;
     bus.where = r.where();
-    bus.name = ReadName(r);
+    const std::string_view name = ReadName(r);
+    bus.name = name;
     r.Read("kv", &bus.nominal_v);
-    bus_volts_.try_emplace(bus.name, bus.nominal_v);
+    BusEntry& entry = buses_[name];  // the first bus of a name counts; a repeat is reported
+    if (!entry.index) entry = {bus.nominal_v, plant_.buses.size()};  // pushed next
     return bus;
   }
 
@@ -296,7 +329,7 @@ class PlantBuilder {
     r.Read("rating", &transformer.rating_va);
     r.Read("impedance", &transformer.impedance);
     r.Read("x_over_r", &transformer.x_over_r);
-    if (const std::optional<std::string> code = r.Text("connection")) {
+    if (const std::optional<std::string_view> code = r.Text("connection")) {
       std::string error;
       if (std::optional<VectorGroup> group = ParseVectorGroup(*code, &error)) {
         transformer.connection = std::move(*group);
@@ -482,8 +515,6 @@ class PlantBuilder {
   }
 
   void CheckIslands() {
-    std::unordered_map<std::string, size_t> index;
-    for (size_t i = 0; i < plant_.buses.size(); ++i) index.try_emplace(plant_.buses[i].name, i);
     std::vector<size_t> parent(plant_.buses.size());
     std::iota(parent.begin(), parent.end(), size_t{0});
     const auto root = [&parent](size_t i) {
@@ -491,13 +522,15 @@ class PlantBuilder {
       return i;
     };
     const auto join = [&](const std::string& a, const std::string& b) {
-      if (index.contains(a) && index.contains(b)) parent[root(index[a])] = root(index[b]);
+      const std::optional<size_t> from = BusIndex(a);
+      const std::optional<size_t> to = BusIndex(b);
+      if (from && to) parent[root(*from)] = root(*to);
     };
     for (const Transformer& t : plant_.transformers) join(t.from, t.to);
     for (const Cable& c : plant_.cables) join(c.from, c.to);
     std::vector<bool> fed(parent.size(), false);
     const auto feed = [&](const std::string& bus) {
-      if (index.contains(bus)) fed[root(index[bus])] = true;
+      if (const std::optional<size_t> i = BusIndex(bus)) fed[root(*i)] = true;
     };
     for (const Supply& s : plant_.supplies) feed(s.bus);
     for (const Generator& g : plant_.generators) feed(g.bus);
@@ -527,9 +560,10 @@ class PlantBuilder {
   std::string file_name_;
   Diagnostics* diagnostics_;
   Plant plant_;
-  std::set<std::string> bus_names_;  // every bus written, for references
-  std::unordered_map<std::string, double> bus_volts_;
-  std::unordered_map<std::string, NameUse> names_;
+  // Names are views into the YAML tree, which outlives the builder.
+  std::unordered_map<std::string_view, BusEntry> buses_;
+  std::vector<std::string_view> sorted_bus_names_;
+  std::unordered_map<std::string_view, NameUse> names_;
   bool topology_unsure_ = false;  // a bus reference or element could not be read
 };
 

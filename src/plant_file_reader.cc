@@ -12,10 +12,7 @@ namespace {
 namespace fs = std::filesystem;
 
 
-std::string ElementName(const YamlNode& node) {
-  const YamlNode name = node["name"];
-  return std::string(name.Scalar());
-}
+std::string_view ElementName(const YamlNode& node) { return node["name"].Scalar(); }
 
 fs::path Canonical(const std::string& path) {
   std::error_code code;
@@ -46,9 +43,11 @@ class PlantFileReader {
     std::optional<YamlDocument> document =
         ParseYamlText(file, text, {"plant", "overtone: 1"}, diagnostics_);
     if (!document) return std::nullopt;
+    // Entries and elements keep a pointer to the name; the plant takes it over below.
+    auto stable_file = std::make_unique<const std::string>(file);
     const YamlNode root = document->documents()[0];
-    MappingReader top(MapEntries(root, file, diagnostics_), Locate(root, file), "the plant file",
-                      kTopKeys, diagnostics_);
+    MappingReader top(MapEntries(root, *stable_file, diagnostics_), root, *stable_file,
+                      "the plant file", kTopKeys, diagnostics_);
     if (!CheckVersion(top)) return std::nullopt;
     top.CheckKeys();
     RawPlant plant;
@@ -59,6 +58,7 @@ class PlantFileReader {
     }
     plant.top_where = top.where();
     plant.documents.push_back(std::move(*document));
+    plant.files.push_back(std::move(stable_file));
     RemoveInherited(top, &plant);
     MergeStudy(top, &plant);
     MergeSections(top, &plant);
@@ -83,9 +83,9 @@ class PlantFileReader {
   }
 
   std::optional<RawPlant> ReadBase(MappingReader& top) {
-    const std::optional<std::string> written = top.Text("extends");
+    const std::optional<std::string_view> written = top.Text("extends");
     if (!written) return std::nullopt;
-    const std::string path = ResolvePath(top.FileOf("extends"), *written);
+    const std::string path = ResolvePath(top.FileOf("extends"), std::string(*written));
     const fs::path canonical = Canonical(path);
     const auto repeat = std::ranges::find(chain_, canonical, &ChainLink::canonical);
     if (repeat != chain_.end()) {
@@ -113,13 +113,13 @@ class PlantFileReader {
       top.Error("remove", "`remove` drops inherited elements, but this file has no `extends`");
       return;
     }
-    const std::string file = top.FileOf("remove");
+    const std::string& file = top.FileOf("remove");
     for (const YamlNode& item : names) {
       if (!item.IsScalar()) {
         diagnostics_->Error(Locate(item, file), "each entry of `remove` must be a name");
         continue;
       }
-      if (!EraseInherited(std::string(item.Scalar()), plant)) {
+      if (!EraseInherited(item.Scalar(), plant)) {
         diagnostics_->Error(Locate(item, file),
                             fmt::format("`{}` is not inherited, so it cannot be removed{}",
                                         item.Scalar(), DidYouMean(item.Scalar(), Names(*plant))));
@@ -127,7 +127,7 @@ class PlantFileReader {
     }
   }
 
-  static bool EraseInherited(const std::string& name, RawPlant* plant) {
+  static bool EraseInherited(std::string_view name, RawPlant* plant) {
     for (std::vector<RawElement>& elements : plant->sections) {
       const auto found = std::ranges::find(elements, name, &RawElement::name);
       if (found != elements.end()) {
@@ -138,8 +138,8 @@ class PlantFileReader {
     return false;
   }
 
-  static std::vector<std::string> Names(const RawPlant& plant) {
-    std::vector<std::string> names;
+  static std::vector<std::string_view> Names(const RawPlant& plant) {
+    std::vector<std::string_view> names;
     for (const std::vector<RawElement>& elements : plant.sections) {
       for (const RawElement& element : elements) names.push_back(element.name);
     }
@@ -150,8 +150,9 @@ class PlantFileReader {
   void MergeStudy(MappingReader& top, RawPlant* plant) {
     const YamlNode study = top.Mapping("study");
     if (!study.IsMap()) return;
-    const std::string file = top.FileOf("study");
-    plant->study_where = Locate(study, file);
+    const std::string& file = top.FileOf("study");
+    plant->study_node = study;
+    plant->study_file = &file;
     for (Entry& entry : MapEntries(study, file, diagnostics_)) {
       const auto inherited = std::ranges::find(plant->study, entry.key, &Entry::key);
       if (inherited != plant->study.end()) {
@@ -171,8 +172,10 @@ class PlantFileReader {
       std::vector<RawElement>& elements = plant->sections[section];
       const size_t inherited = elements.size();
       std::vector<bool> replaced(inherited, false);
+      elements.reserve(inherited + list.size());
+      const std::string* file = &top.FileOf(key);
       for (const YamlNode& node : list) {
-        RawElement element{ElementName(node), node, top.FileOf(key)};
+        RawElement element{ElementName(node), node, file};
         size_t slot = 0;
         while (slot < inherited &&
                (replaced[slot] || element.name.empty() || elements[slot].name != element.name)) {

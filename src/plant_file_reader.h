@@ -3,6 +3,7 @@
 #define OVERTONE_INTERNAL_PLANT_FILE_READER_H_
 
 #include <array>
+#include <memory>
 #include <optional>
 #include <span>
 #include <string>
@@ -52,17 +53,21 @@ constexpr SectionInfo kSections[kSectionCount] = {
 };
 // clang-format on
 
+// Names and nodes point into the RawPlant's documents and files.
 struct RawElement {
-  std::string name;  // empty when missing or malformed (reported when the element is read)
+  std::string_view name;  // empty when missing or malformed (reported when the element is read)
   YamlNode node;
-  std::string file;
+  const std::string* file;
 };
 
 struct RawPlant {
   std::vector<YamlDocument> documents;  // the files read; the elements' nodes live in them
+  // The names of the files read, each at a fixed address for the entries and elements naming it.
+  std::vector<std::unique_ptr<const std::string>> files;
   SourceLocation top_where;  // the root file's top-level mapping
   std::vector<Entry> study;  // merged key by key; each entry keeps its own file
-  SourceLocation study_where;
+  YamlNode study_node;       // undefined when no file has `study`
+  const std::string* study_file = nullptr;
   std::array<std::vector<RawElement>, kSectionCount> sections;
 };
 

@@ -2,6 +2,7 @@
 #ifndef OVERTONE_INTERNAL_PLANT_KEYS_H_
 #define OVERTONE_INTERNAL_PLANT_KEYS_H_
 
+#include <cstddef>
 #include <limits>
 #include <span>
 #include <string>
@@ -63,7 +64,8 @@ constexpr KeySpec MappingKey(std::string_view key) {
 
 using K = QuantityKind;  // keeps the tables readable
 
-// A key listed twice takes either kind; a bare number is read in the first row's unit.
+// A key listed twice (on adjacent rows) takes either kind; a bare number is read in the first
+// row's unit.
 // clang-format off
 constexpr KeySpec kTopKeys[] = {
     IntegerKey("overtone", {}), TextKey("extends"),       ListKey("remove"),
@@ -210,6 +212,30 @@ constexpr KeySpec kDriveKeys[] = {
     ListKey("harmonics"),
     NumberKey("displacement_pf", K::kFraction, "", kFractionRange),
 };
+
+// MappingReader finds a key's rows as one run of the table, and parses at most this many kinds.
+constexpr size_t kMaxRowsPerKey = 2;
+
+constexpr bool RowsOfEachKeyAdjacent(std::span<const KeySpec> table) {
+  for (size_t first = 0; first < table.size();) {
+    size_t last = first;
+    while (last < table.size() && table[last].key == table[first].key) ++last;
+    if (last - first > kMaxRowsPerKey) return false;
+    for (size_t later = last; later < table.size(); ++later) {
+      if (table[later].key == table[first].key) return false;
+    }
+    first = last;
+  }
+  return true;
+}
+
+static_assert(RowsOfEachKeyAdjacent(kTopKeys) && RowsOfEachKeyAdjacent(kStudyKeys) &&
+              RowsOfEachKeyAdjacent(kHarmonicKeys) && RowsOfEachKeyAdjacent(kSupplyKeys) &&
+              RowsOfEachKeyAdjacent(kGeneratorKeys) && RowsOfEachKeyAdjacent(kBusKeys) &&
+              RowsOfEachKeyAdjacent(kTransformerKeys) && RowsOfEachKeyAdjacent(kCableKeys) &&
+              RowsOfEachKeyAdjacent(kCapacitorKeys) && RowsOfEachKeyAdjacent(kFilterKeys) &&
+              RowsOfEachKeyAdjacent(kMotorKeys) && RowsOfEachKeyAdjacent(kLoadKeys) &&
+              RowsOfEachKeyAdjacent(kDriveKeys));
 
 // Which drive keys apply to which front ends (PLANT-FORMAT.md "drives").
 constexpr unsigned Bit(FrontEnd front_end) { return 1u << static_cast<unsigned>(front_end); }
