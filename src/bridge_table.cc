@@ -105,8 +105,12 @@ std::size_t BridgeTable::KeyHash::operator()(const std::pair<Kind, Index>& key) 
 }
 
 int BridgeTable::solved_nodes() const {
-  std::lock_guard lock(mutex_);
-  return static_cast<int>(nodes_.size());
+  std::size_t count = 0;
+  for (const Shard& shard : shards_) {
+    std::lock_guard lock(shard.mutex);
+    count += shard.nodes.size();
+  }
+  return static_cast<int>(count);
 }
 
 const BridgeTable::Node& BridgeTable::Solved(const Kind& kind, Index index) {
@@ -114,10 +118,13 @@ const BridgeTable::Node& BridgeTable::Solved(const Kind& kind, Index index) {
   while (index[0] > 0 && index[1] % 2 == 0 && index[2] % 2 == 0 && index[3] % 2 == 0) {
     index = {index[0] - 1, index[1] / 2, index[2] / 2, index[3] / 2};
   }
+  const std::pair<Kind, Index> key = {kind, index};
+  const std::size_t hash = KeyHash{}(key);
+  Shard& shard = shards_[hash % kShards];
   Node* node;
   {
-    std::lock_guard lock(mutex_);
-    std::unique_ptr<Node>& slot = nodes_[{kind, index}];
+    std::lock_guard lock(shard.mutex);
+    std::unique_ptr<Node>& slot = shard.nodes[key];
     if (!slot) slot = std::make_unique<Node>();
     node = slot.get();
   }
@@ -209,11 +216,13 @@ std::optional<BridgeTable::Blend> BridgeTable::BlendAt(const Kind& kind, const P
         const double du = su.check[i] * sv.weight[j] * sw.weight[k];
         const double dv = su.weight[i] * sv.check[j] * sw.weight[k];
         const double dw = su.weight[i] * sv.weight[j] * sw.check[k];
-        for (const std::size_t h : carried_) {
-          b.relative[h] += w * n.relative[h];
-          bend_u[h] += du * n.relative[h];
-          bend_v[h] += dv * n.relative[h];
-          bend_w[h] += dw * n.relative[h];
+        for (const std::size_t h : carried_) b.relative[h] += w * n.relative[h];
+        if (level == 0) {  // the finer stencils are not cubic: nothing to check
+          for (const std::size_t h : carried_) {
+            bend_u[h] += du * n.relative[h];
+            bend_v[h] += dv * n.relative[h];
+            bend_w[h] += dw * n.relative[h];
+          }
         }
         b.fundamental += w * n.fundamental;
         b.dc_voltage += w * n.dc_voltage;

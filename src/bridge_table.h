@@ -136,11 +136,17 @@ class BridgeTable {
   // the half-period symmetry, the triplens hold round-off). Only these are blended; the others
   // of an interpolated solution are zero.
   std::vector<std::size_t> carried_;
-  mutable std::mutex mutex_;
   struct KeyHash {
     std::size_t operator()(const std::pair<Kind, Index>& key) const;
   };
-  std::unordered_map<std::pair<Kind, Index>, std::unique_ptr<Node>, KeyHash> nodes_;  // nodes stay put
+  // The nodes, spread over shards by key so that threads looking up different nodes seldom
+  // wait on one lock (a blend looks up 48); nodes stay put.
+  struct Shard {
+    mutable std::mutex mutex;
+    std::unordered_map<std::pair<Kind, Index>, std::unique_ptr<Node>, KeyHash> nodes;
+  };
+  static constexpr std::size_t kShards = 64;
+  std::array<Shard, kShards> shards_;
 };
 
 }  // namespace overtone::internal

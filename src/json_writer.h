@@ -29,7 +29,9 @@ class JsonWriter {
   // 17-digit round-trip form.
   static constexpr int kDigits = 9;
 
-  explicit JsonWriter(std::ostream& out) : out_(out) {}
+  explicit JsonWriter(std::ostream& out) : out_(&out) {}
+  // Appends to `text` instead: for items formatted apart, in parallel (Values).
+  explicit JsonWriter(std::string& text) : text_(&text) {}
   ~JsonWriter() { Flush(); }
   JsonWriter(const JsonWriter&) = delete;
   JsonWriter& operator=(const JsonWriter&) = delete;
@@ -66,7 +68,12 @@ class JsonWriter {
   JsonWriter& Values(std::string_view values) {
     if (values.empty()) return *this;
     Prefix();
-    Append(values);
+    if (values.size() < kFlushBytes) {
+      Append(values);
+    } else {  // straight through, not copied into the buffer first
+      Flush();
+      Emit(values);
+    }
     return Done();
   }
   JsonWriter& StringArray(std::string_view key, const std::vector<std::string>& items) {
@@ -100,8 +107,12 @@ class JsonWriter {
     return *this;
   }
   void Flush() {
-    out_.write(buf_.data(), static_cast<std::streamsize>(buf_.size()));
+    Emit(std::string_view(buf_.data(), buf_.size()));
     buf_.clear();
+  }
+  void Emit(std::string_view text) {
+    if (text_ != nullptr) text_->append(text);
+    else out_->write(text.data(), static_cast<std::streamsize>(text.size()));
   }
   void Append(std::string_view s) { buf_.append(s.data(), s.data() + s.size()); }
   // Runs of plain characters are copied whole; only quotes, backslashes and control characters
@@ -163,7 +174,8 @@ class JsonWriter {
   static constexpr double kPow10[] = {1e0, 1e1, 1e2,  1e3,  1e4,  1e5,  1e6,
                                       1e7, 1e8, 1e9, 1e10, 1e11, 1e12, 1e13};  // exact doubles
 
-  std::ostream& out_;
+  std::ostream* out_ = nullptr;  // one of the two
+  std::string* text_ = nullptr;
   fmt::memory_buffer buf_;
   int depth_ = 0;       // open objects and arrays
   bool comma_ = false;  // the next value or key follows another at its level

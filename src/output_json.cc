@@ -3,7 +3,6 @@
 #include <cmath>
 #include <memory>
 #include <numbers>
-#include <sstream>
 #include <string>
 #include <vector>
 
@@ -124,20 +123,18 @@ void WriteItems(JsonWriter& j, std::size_t count, int threads, WriteItem write_i
     const std::size_t n = std::min(wave, blocks - first);
     internal::ParallelFor(static_cast<int>(n), threads, [] { return std::make_unique<int>(0); },
                           [&](int&, int b) {
-                            std::ostringstream out;
-                            {
-                              JsonWriter block(out);
-                              block.BeginArray();
-                              const std::size_t begin = (first + b) * kBlock;
-                              for (std::size_t i = begin; i < std::min(count, begin + kBlock); ++i) {
-                                write_item(block, i);
-                              }
-                              block.EndArray();
+                            text[b].clear();  // its capacity serves the next wave
+                            JsonWriter block(text[b]);
+                            block.BeginArray();
+                            const std::size_t begin = (first + b) * kBlock;
+                            for (std::size_t i = begin; i < std::min(count, begin + kBlock); ++i) {
+                              write_item(block, i);
                             }
-                            const std::string written = std::move(out).str();
-                            text[b] = written.substr(1, written.size() - 2);  // less [ and ]
+                            block.EndArray();
                           });
-    for (std::size_t b = 0; b < n; ++b) j.Values(text[b]);
+    for (std::size_t b = 0; b < n; ++b) {
+      j.Values(std::string_view(text[b]).substr(1, text[b].size() - 2));  // less [ and ]
+    }
   }
 }
 
