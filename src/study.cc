@@ -61,7 +61,8 @@ Complex SourceEmfAt(const Network& net, const internal::SourceRef& src, int h) {
 // One harmonic source of the plant: a drive group or a supply's background, with its currents.
 struct HarmonicSource {
   const Supply* background_of = nullptr;  // null: a drive group
-  std::vector<std::vector<Injection>> injections;  // by order
+  int bus = 0;                            // every source injects at one bus
+  std::vector<Complex> current;           // injected there, by order (zero where none)
 };
 
 // For every bus, whether it reaches a supply or generator bus over branches without passing
@@ -190,7 +191,12 @@ PccResult AssessPcc(const Plant& plant, const Network& net, Spectrum current,
 void SumBySource(Summation rule, const Network& net, const PccMeter& meter, int pcc_bus,
                  const std::vector<HarmonicSource>& sources, int threads, StudyResult& result) {
   std::vector<std::vector<std::vector<Injection>>> sets;
-  for (const HarmonicSource& s : sources) sets.push_back(s.injections);
+  for (const HarmonicSource& s : sources) {
+    std::vector<std::vector<Injection>>& set = sets.emplace_back(s.current.size());
+    for (std::size_t h = 2; h < s.current.size(); ++h) {
+      if (s.current[h] != Complex{}) set[h].push_back({s.bus, s.current[h]});
+    }
+  }
   const int max_order = result.study.max_order;
   const std::size_t buses = static_cast<std::size_t>(net.bus_count()), branches = net.branches().size();
   const std::size_t row = buses + branches + 1;  // per order: buses, branches, the pcc
@@ -282,16 +288,17 @@ StudyResult RunStudy(const Plant& plant, const StudyOptions& options) {
   const std::size_t orders = static_cast<std::size_t>(max_order) + 1;
   std::vector<HarmonicSource> sources;
   for (std::size_t k = 0; k < plant.drives.size(); ++k) {
-    const int bus = net.BusIndex(plant.drives[k].bus);
     HarmonicSource& source = sources.emplace_back();
-    source.injections.resize(orders);
-    for (int h = 2; h <= max_order; ++h) source.injections[h].push_back({bus, -op.drives[k].current[h]});
+    source.bus = net.BusIndex(plant.drives[k].bus);
+    source.current.resize(orders);
+    for (int h = 2; h <= max_order; ++h) source.current[h] = -op.drives[k].current[h];
   }
   for (const auto& s : net.sources()) {
     if (!s.supply || s.supply->background.empty()) continue;
     HarmonicSource& source = sources.emplace_back();
     source.background_of = s.supply;
-    source.injections.resize(orders);
+    source.bus = s.bus;
+    source.current.resize(orders);
     for (const HarmonicEntry& e : s.supply->background) {
       if (e.order > max_order) continue;
       if (e.order % 3 == 0) {
@@ -299,14 +306,13 @@ StudyResult RunStudy(const Plant& plant, const StudyOptions& options) {
                                               "(zero sequence, format 1)", s.name(), e.order));
         continue;
       }
-      source.injections[e.order].push_back(
-          {s.bus, BackgroundEmf(*s.supply, e.order) / net.SourceImpedance(s, e.order)});
+      source.current[e.order] += BackgroundEmf(*s.supply, e.order) / net.SourceImpedance(s, e.order);
     }
   }
   std::vector<std::vector<Injection>> injections(orders);
   for (const HarmonicSource& source : sources) {
     for (int h = 2; h <= max_order; ++h) {
-      injections[h].insert(injections[h].end(), source.injections[h].begin(), source.injections[h].end());
+      if (source.current[h] != Complex{}) injections[h].push_back({source.bus, source.current[h]});
     }
   }
 
