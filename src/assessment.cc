@@ -2,6 +2,8 @@
 #include "assessment.h"
 
 #include <cmath>
+#include <string>
+#include <type_traits>
 
 #include <fmt/format.h>
 
@@ -11,10 +13,17 @@
 namespace overtone::internal {
 namespace {
 
-// Checks one figure; a figure over its limit is added to `out`.
-void Check(std::vector<Violation>& out, const std::string& where, const std::string& what,
-           double value, double limit) {
-  if (value > limit) out.push_back({where, what, value, limit});
+// Checks one figure; a figure over its limit is added to `out` with its label `what`, or
+// `what()` for a label made only then (a large study checks millions of figures).
+template <typename Label>
+void Check(std::vector<Violation>& out, const std::string& where, const Label& what, double value,
+           double limit) {
+  if (!(value > limit)) return;
+  if constexpr (std::is_invocable_v<Label>) {
+    out.push_back({where, what(), value, limit});
+  } else {
+    out.push_back({where, std::string(what), value, limit});
+  }
 }
 
 BusLimitCheck CheckBus(const BusResult& b, const VoltageLimitClass& limits, bool design_guide,
@@ -32,7 +41,7 @@ BusLimitCheck CheckBus(const BusResult& b, const VoltageLimitClass& limits, bool
     if (!limits.individual[h]) continue;
     const double percent = v1 > kNegligibleVoltagePu ? 100.0 * std::abs(b.voltage_pu.by_order[h]) / v1 : 0.0;
     const double limit = *limits.individual[h];
-    Check(out, b.name, fmt::format("v_h{}", h), percent, limit);
+    Check(out, b.name, [h] { return fmt::format("v_h{}", h); }, percent, limit);
     if (percent / limit > worst_ratio) {
       worst_ratio = percent / limit;
       c.worst_order = static_cast<int>(h);
@@ -55,7 +64,8 @@ void CheckPccCurrent(const LimitProfile& profile, double pcc_kv, StudyResult& r)
     if (h.order >= static_cast<int>(row->individual.size()) || !row->individual[h.order]) continue;
     h.limit_percent = row->individual[h.order];
     h.pass = h.percent_of_il <= *h.limit_percent;
-    Check(r.assessment.violations, pcc.bus, fmt::format("i_h{}", h.order), h.percent_of_il, *h.limit_percent);
+    Check(r.assessment.violations, pcc.bus, [&h] { return fmt::format("i_h{}", h.order); },
+          h.percent_of_il, *h.limit_percent);
   }
 }
 

@@ -29,7 +29,7 @@ std::vector<Complex> PhaseVolts(const std::vector<Phasor>& pu, double nominal_v)
   return v;
 }
 
-double Rms(const std::vector<Complex>& x) { return ComputeIndices(x).rms; }
+double Rms(const std::vector<Complex>& x) { return ComputeIndices(x, 0.0, /*with_peak=*/false).rms; }
 
 // The IEEE 18 figures from the capacitor's own voltage and current spectra (index = order) and
 // its rating (three-phase var at line-to-line volts).
