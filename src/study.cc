@@ -63,6 +63,13 @@ struct HarmonicSource {
   const Supply* background_of = nullptr;  // null: a drive group
   int bus = 0;                            // every source injects at one bus
   std::vector<Complex> current;           // injected there, by order (zero where none)
+
+  // Adds the source's currents to `by_order` (orders 2 and up, none where it injects nothing).
+  void AddTo(std::vector<std::vector<Injection>>& by_order) const {
+    for (std::size_t h = 2; h < current.size(); ++h) {
+      if (current[h] != Complex{}) by_order[h].push_back({bus, current[h]});
+    }
+  }
 };
 
 // For every bus, whether it reaches a supply or generator bus over branches without passing
@@ -191,12 +198,7 @@ PccResult AssessPcc(const Plant& plant, const Network& net, Spectrum current,
 void SumBySource(Summation rule, const Network& net, const PccMeter& meter, int pcc_bus,
                  const std::vector<HarmonicSource>& sources, int threads, StudyResult& result) {
   std::vector<std::vector<std::vector<Injection>>> sets;
-  for (const HarmonicSource& s : sources) {
-    std::vector<std::vector<Injection>>& set = sets.emplace_back(s.current.size());
-    for (std::size_t h = 2; h < s.current.size(); ++h) {
-      if (s.current[h] != Complex{}) set[h].push_back({s.bus, s.current[h]});
-    }
-  }
+  for (const HarmonicSource& s : sources) s.AddTo(sets.emplace_back(s.current.size()));
   const int max_order = result.study.max_order;
   const std::size_t buses = static_cast<std::size_t>(net.bus_count()), branches = net.branches().size();
   const std::size_t row = buses + branches + 1;  // per order: buses, branches, the pcc
@@ -310,11 +312,7 @@ StudyResult RunStudy(const Plant& plant, const StudyOptions& options) {
     }
   }
   std::vector<std::vector<Injection>> injections(orders);
-  for (const HarmonicSource& source : sources) {
-    for (int h = 2; h <= max_order; ++h) {
-      if (source.current[h] != Complex{}) injections[h].push_back({source.bus, source.current[h]});
-    }
-  }
+  for (const HarmonicSource& source : sources) source.AddTo(injections);
 
   internal::HarmonicSolution sol = internal::SolveHarmonics(net, injections, max_order, options.threads);
   for (int i = 0; i < net.bus_count(); ++i) sol.voltage[static_cast<std::size_t>(sol.bus_count) + i] = flow.voltage[i];
